@@ -1,0 +1,1 @@
+COPY (SELECT * FROM read_csv('{IN}', all_varchar = true)) TO '{OUT}' (HEADER, DELIMITER ',')

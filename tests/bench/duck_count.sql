@@ -1,0 +1,1 @@
+SELECT count(*) FROM read_csv('{IN}', all_varchar = true)
