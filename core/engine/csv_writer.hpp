@@ -1,0 +1,57 @@
+// RFC 4180 writer with minimal quoting: a field is quoted only when it holds
+// the delimiter, the quote character, CR or LF (RFC 4180 §2 rule 6), or when
+// it is the only field of a record and empty (so the record is not mistaken
+// for an empty line). Output is UTF-8. Typed cells use their canonical text
+// form (design §3).
+#pragma once
+
+#include <array>
+#include <span>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "byte_io.hpp"
+#include "dates.hpp"
+#include "error.hpp"
+#include "table.hpp"
+
+namespace tamis {
+
+struct CsvWriteOptions {
+  char delimiter = ',';
+  char quote = '"';
+  std::string line_ending = "\n";
+  std::string null_marker;  // how NULL is written (unquoted unless it needs quotes)
+  std::string date_format = "%Y-%m-%d";
+};
+
+class CsvWriter {
+ public:
+  static Result<CsvWriter> make(ByteSink& sink, CsvWriteOptions options);
+
+  Status write_row(std::span<const std::string_view> fields);
+  Status write_table(const Table& table);
+  // Flushes the buffer and commits the sink.
+  Status finish();
+
+ private:
+  CsvWriter(ByteSink& sink, CsvWriteOptions options, DateFormat date_format);
+  void append_field(std::string_view value, bool only_field);
+  void append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field);
+  Status flush_if_full();
+
+  ByteSink* sink_;
+  CsvWriteOptions options_;
+  DateFormat date_format_;
+  std::array<uint8_t, 256> needs_quotes_{};
+  std::string buffer_;
+  std::string cell_;
+};
+
+// Canonical text form of one typed value (integer, decimal at scale, date,
+// boolean); text values are returned as they are.
+void append_canonical(const Column& column, const ColumnChunk& chunk, size_t row,
+                      const DateFormat& date_format, std::string& out);
+
+}  // namespace tamis

@@ -1,0 +1,140 @@
+// The columnar table (design §3).
+//
+// A Table is named Columns plus the source line of every row. A Column is a
+// list of immutable chunks shared through shared_ptr, so a new version of a
+// table that changes one column shares every other column (and every
+// untouched chunk) with the old one: undo and "table as of step k" cost a few
+// pointers, not a copy.
+//
+// Storage per chunk: a validity bitmap (bit set = value present; empty bitmap
+// = no NULLs; NULL is never the empty string), then either UTF-8 text in one
+// byte arena with 32-bit offsets (so a chunk holds at most 4 GiB of text), or
+// one int64 per row for the typed columns.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <memory>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "error.hpp"
+
+namespace tamis {
+
+enum class Type : uint8_t { text, integer, decimal, date, boolean };
+
+std::string_view type_name(Type type);
+std::optional<Type> type_from_name(std::string_view name);
+
+// Typed values in ColumnChunk::numbers:
+//   integer  the value
+//   decimal  the value times 10^scale (scale is per column)
+//   date     days since 1970-01-01 (proleptic Gregorian)
+//   boolean  0 or 1
+struct ColumnChunk {
+  size_t rows = 0;
+  std::vector<uint64_t> validity;
+  std::string bytes;
+  std::vector<uint32_t> offsets;  // text: rows + 1 entries, value i is bytes[offsets[i], offsets[i+1])
+  std::vector<int64_t> numbers;
+
+  bool has_nulls() const { return !validity.empty(); }
+  bool is_null(size_t i) const { return has_nulls() && !((validity[i >> 6] >> (i & 63)) & 1); }
+  std::string_view text(size_t i) const {
+    return std::string_view(bytes.data() + offsets[i], offsets[i + 1] - offsets[i]);
+  }
+  size_t memory_bytes() const;
+};
+
+// Appends rows to one text chunk; reserve() with a good estimate avoids
+// regrowth, finish() trims what was over-reserved.
+class TextChunkBuilder {
+ public:
+  TextChunkBuilder();
+  void reserve(size_t rows, size_t bytes);
+  void append(std::string_view value) {
+    chunk_->bytes.append(value);
+    chunk_->offsets.push_back(static_cast<uint32_t>(chunk_->bytes.size()));
+  }
+  void append_null();
+  size_t rows() const { return chunk_->offsets.size() - 1; }
+  size_t bytes() const { return chunk_->bytes.size(); }
+  std::shared_ptr<const ColumnChunk> finish();
+
+ private:
+  std::shared_ptr<ColumnChunk> chunk_;
+  size_t nulls_ = 0;
+};
+
+class Column {
+ public:
+  explicit Column(Type type = Type::text, int scale = 0) : type_(type), scale_(scale) {}
+
+  Type type() const { return type_; }
+  int scale() const { return scale_; }
+  size_t size() const { return starts_.back(); }
+
+  size_t chunk_count() const { return chunks_.size(); }
+  const ColumnChunk& chunk(size_t k) const { return *chunks_[k]; }
+  const std::shared_ptr<const ColumnChunk>& chunk_ptr(size_t k) const { return chunks_[k]; }
+  size_t chunk_start(size_t k) const { return starts_[k]; }
+  void append_chunk(std::shared_ptr<const ColumnChunk> chunk);
+
+  // Random access (binary search over chunk starts); loops should walk chunks.
+  bool is_null(size_t row) const;
+  std::string_view text(size_t row) const;
+  int64_t number(size_t row) const;
+
+  size_t memory_bytes() const;
+
+ private:
+  std::pair<size_t, size_t> locate(size_t row) const;
+
+  Type type_;
+  int scale_;
+  std::vector<std::shared_ptr<const ColumnChunk>> chunks_;
+  std::vector<size_t> starts_{0};  // starts_[k] = first row of chunk k; back() = size
+};
+
+using ColumnPtr = std::shared_ptr<const Column>;
+
+class Table {
+ public:
+  Table() : lines_(std::make_shared<Column>(Type::integer)) {}
+
+  // All columns and the source-line column must have the same length.
+  static Result<Table> make(std::vector<std::string> names, std::vector<ColumnPtr> columns,
+                            ColumnPtr source_lines);
+
+  size_t row_count() const { return lines_->size(); }
+  size_t column_count() const { return columns_.size(); }
+  const std::vector<std::string>& names() const { return names_; }
+  const std::string& name(size_t c) const { return names_[c]; }
+  const Column& column(size_t c) const { return *columns_[c]; }
+  const ColumnPtr& column_ptr(size_t c) const { return columns_[c]; }
+  std::optional<size_t> find(std::string_view name) const;
+
+  // 1-based physical line in the source file where the row's record starts.
+  const Column& source_lines() const { return *lines_; }
+  const ColumnPtr& source_lines_ptr() const { return lines_; }
+  uint64_t source_line(size_t row) const { return static_cast<uint64_t>(lines_->number(row)); }
+
+  // Copy-on-write: the returned table shares every other column with this one.
+  Table with_column(size_t c, ColumnPtr column) const;
+
+  // Appends the chunks of a batch with the same column names (no copy of data).
+  Status append(const Table& batch);
+
+  // Bytes held by the data, each shared chunk counted once.
+  size_t memory_bytes() const;
+
+ private:
+  std::vector<std::string> names_;
+  std::vector<ColumnPtr> columns_;
+  ColumnPtr lines_;
+};
+
+}  // namespace tamis

@@ -1,0 +1,27 @@
+// tamis: the batch side of the cleaning workbench.
+#include <iostream>
+
+#include "commands.hpp"
+
+int main(int argc, char** argv) {
+  using namespace tamis::cli;
+  CLI::App app{
+      "tamis: see what is wrong with a CSV/TSV extract, clean it, and replay the cleaning unattended.\n"
+      "Inputs are never modified. Exit codes: 0 ok, 1 a required rule failed, 2 usage error,\n"
+      "3 the input is malformed or does not match, 4 I/O error.",
+      "tamis"};
+  app.require_subcommand(1);
+  app.set_version_flag("--version", "tamis 0.1.0");
+  ConvertArgs convert_args;
+  ProfileArgs profile_args;
+  CLI::App* convert = add_convert_command(app, convert_args);
+  CLI::App* profile = add_profile_command(app, profile_args);
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    return app.exit(e) == 0 ? 0 : 2;
+  }
+  if (convert->parsed()) return run_convert(convert_args);
+  if (profile->parsed()) return run_profile(profile_args);
+  return 2;
+}
