@@ -1,6 +1,7 @@
 #include <filesystem>
 #include <iostream>
 
+#include "batch_pipeline.hpp"
 #include "commands.hpp"
 #include "csv_writer.hpp"
 #include "progress.hpp"
@@ -101,8 +102,9 @@ int run_convert(const ConvertArgs& args) {
   if (Status s = writer->write_row(header); !s) return report_error(s.error());
 
   Progress progress("converting", in.total_bytes());
+  BatchPipeline batches(in, 2);
   for (;;) {
-    auto batch = in.next_batch();
+    auto batch = batches.next();
     if (!batch) return report_error(batch.error());
     if (!batch->has_value()) break;
     if (Status s = writer->write_table(**batch); !s) return report_error(s.error());

@@ -1,10 +1,20 @@
 // tamis: the batch side of the cleaning workbench.
 #include <iostream>
+#ifdef __GLIBC__
+#include <malloc.h>
+#endif
 
 #include "commands.hpp"
 
 int main(int argc, char** argv) {
   using namespace tamis::cli;
+#ifdef __GLIBC__
+  // Streaming commands free and allocate batches of the same size over and
+  // over; keeping that memory in the process instead of handing it back to
+  // the kernel after every batch saves a page fault per 4 KiB of data.
+  mallopt(M_MMAP_THRESHOLD, 64 << 20);
+  mallopt(M_TRIM_THRESHOLD, 256 << 20);
+#endif
   CLI::App app{
       "tamis: see what is wrong with a CSV/TSV extract, clean it, and replay the cleaning unattended.\n"
       "Inputs are never modified. Exit codes: 0 ok, 1 a required rule failed, 2 usage error,\n"
