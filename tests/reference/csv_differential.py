@@ -36,6 +36,11 @@ PLAIN_PIECES = ["a", "B", "zz", "0", "42", "-7.5", " ", "  ", "x y", "é", "ß",
 DELIMITER_PIECES = [",", ";", "\t", "|"]
 QUOTE_PIECES = ['"', '""', 'say "hi"']
 BREAK_PIECES = ["\r", "\n", "\r\n", "\n\n"]
+# Whole values that look typed: a reader that infers types must still give
+# back the text as written (leading zeros, signs, trailing zeros, exponents,
+# digits beyond 64 bits, date and boolean spellings, padded numbers).
+TYPED_LOOKING_VALUES = ["007", "1.50", "-0", "+5", "1e3", "12345678901234567890", "0.1", "3.14159265358979323846",
+                        " 42", "42 ", "2024-01-05", "5/1/2024", "TRUE", "no", "NaN", "NULL", "-", ".5", "1,5", ""]
 
 
 def random_field(rng, allow_delimiters):
@@ -86,11 +91,15 @@ def generate_file(rng, index):
         columns = rng.choice([1, 1, 2, 3, 3, 4, 5, 6])
         rows = rng.randint(1, 25)
     terminator = rng.choice(TERMINATORS)
+    typed_looking_columns = {c for c in range(columns) if rng.random() < 0.2}
     records = []
     for _ in range(rows):
         record = []
-        for _ in range(columns):
-            field = random_field(rng, allow_delimiters=not auto_delimiter)
+        for column in range(columns):
+            if column in typed_looking_columns:
+                field = rng.choice(TYPED_LOOKING_VALUES)
+            else:
+                field = random_field(rng, allow_delimiters=not auto_delimiter)
             if auto_delimiter:
                 for other in CANDIDATE_DELIMITERS:
                     if other != delimiter:

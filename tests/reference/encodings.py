@@ -173,6 +173,15 @@ def main():
                         "undefined windows-1252 byte 0x%02X: stderr has a warning naming it" % value,
                         "input: %s\nstderr: %s" % (reflib.show_bytes(data), stderr.strip()[:600]))
 
+        # Negative control: defined bytes only (0x80, 0x9F, 0xE9) give no such warning.
+        data = b"site,note\nn1,\x80 \x9f caf\xe9\n"
+        args = ["--encoding", "windows-1252", "--delimiter", ",", "--header", "yes"]
+        code, output, stderr = runner.convert(data, args)
+        check_records(tally, "defined windows-1252 bytes only", data, args, cp1252_decode(data), code, output, stderr)
+        tally.check(not re.search(r"(?i)undefined|0x(81|8D|8F|90|9D)\b", stderr),
+                    "defined windows-1252 bytes only: no warning about undefined bytes",
+                    "input: %s\nstderr: %s" % (reflib.show_bytes(data), stderr.strip()[:600]))
+
         # ISO-8859-1: every byte but NUL (Python latin-1).
         args = ["--encoding", "iso-8859-1", "--delimiter", ",", "--header", "no"]
         code, output, stderr = runner.convert(table_file, args)
