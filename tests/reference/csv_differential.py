@@ -22,6 +22,11 @@ sys.dont_write_bytecode = True
 import reflib  # noqa: E402
 
 FILE_COUNT = 1200
+# The last files are large (thousands of records, up to a few MB) so record
+# boundaries, quoted line breaks, CRLF pairs and multi-byte characters fall
+# across whatever buffer or batch limits a streaming reader has (common
+# practice for testing streaming parsers).
+LARGE_FILE_COUNT = 12
 SEED = 4180
 CANDIDATE_DELIMITERS = [",", ";", "\t", "|"]
 DELIMITER_ARGUMENT = {",": ",", ";": ";", "\t": "tab", "|": "|"}
@@ -81,6 +86,7 @@ def encode_field(rng, field, delimiter, alone_in_record):
 
 def generate_file(rng, index):
     auto_delimiter = index % 4 == 3
+    large = index >= FILE_COUNT - LARGE_FILE_COUNT
     delimiter = rng.choice(CANDIDATE_DELIMITERS)
     if auto_delimiter:
         # Unambiguous for detection: at least two columns and rows, and no other
@@ -90,6 +96,8 @@ def generate_file(rng, index):
     else:
         columns = rng.choice([1, 1, 2, 3, 3, 4, 5, 6])
         rows = rng.randint(1, 25)
+    if large:
+        rows = rng.randint(5000, 40000)
     terminator = rng.choice(TERMINATORS)
     typed_looking_columns = {c for c in range(columns) if rng.random() < 0.2}
     records = []
@@ -225,7 +233,10 @@ def main():
             len(cases) - auto_count, auto_count, sum(1 for c in cases if c["bom"]),
             sum(1 for c in cases if c["via_stdin"]), sum(1 for c in cases if c["to_stdout"])),
         "  terminators: " + ", ".join("%r x%d" % (t, sum(1 for c in cases if c["terminator"] == t)) for t in TERMINATORS),
-        "  %d records in all" % sum(len(c["records"]) for c in cases),
+        "  %d records in all; the %d largest files %d-%d KB" % (
+            sum(len(c["records"]) for c in cases), LARGE_FILE_COUNT,
+            min(len(c["data"]) for c in cases[-LARGE_FILE_COUNT:]) // 1024,
+            max(len(c["data"]) for c in cases[-LARGE_FILE_COUNT:]) // 1024),
     ]
     tally.finish(summary)
 

@@ -247,6 +247,16 @@ def main():
                 code, output, stderr = runner.convert(data, args)
                 check_records(tally, label, data, args, reference_text, code, output, stderr)
 
+            # A large file: surrogate pairs and the tricky code units above at
+            # every alignment, so they straddle any internal buffer limit.
+            body = "".join('%d,"%s\r\n%s",%s\n' % (i, "\U0001F333" * (i % 7), "Ⰰਢ" * (i % 5), "ഊ∍" * (i % 3))
+                               for i in range(20000))
+            large = "\ufeff".encode(codec_name) + ("n,note,tail\n" + body).encode(codec_name)
+            args = ["--delimiter", ",", "--header", "yes"]
+            code, output, stderr = runner.convert(large, args)
+            check_records(tally, "%s with BOM, %d KB" % (label_name, len(large) // 1024), large, args,
+                          large.decode("utf-16"), code, output, stderr)
+
             # Profile names the detected encoding (CLI contract: "encoding" in profile JSON,
             # named as in --encoding).
             code, report, stderr = runner.profile("\ufeff".encode(codec_name) + utf16_text.encode(codec_name), ["--header", "yes"])
