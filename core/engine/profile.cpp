@@ -30,8 +30,11 @@ class ValueCounter {
   struct Slot {
     uint64_t hash = 0;  // 0 = empty
     const char* data = nullptr;
-    uint64_t size = 0;
-    uint64_t count = 0;
+    // 24-byte slots: a value lives in one chunk (at most 4 GiB of text), and a
+    // table that fits in memory is far below 2^32 rows (its source-line column
+    // alone would take 32 GiB).
+    uint32_t size = 0;
+    uint32_t count = 0;
     std::string_view value() const { return {data, size}; }
   };
 
@@ -43,7 +46,7 @@ class ValueCounter {
     for (size_t i = h & (slots_.size() - 1);; i = (i + 1) & (slots_.size() - 1)) {
       Slot& s = slots_[i];
       if (s.hash == 0) {
-        s = {h, v.data(), v.size(), 1};
+        s = {h, v.data(), static_cast<uint32_t>(v.size()), 1};
         if (++used_ * 2 > slots_.size()) grow();
         return;
       }
@@ -54,12 +57,15 @@ class ValueCounter {
     }
   }
 
-  std::vector<Slot> entries() const {
-    std::vector<Slot> out;
-    out.reserve(used_);
+  // The distinct values, compacted in place (the counter is used up).
+  std::vector<Slot> take_entries() {
+    size_t n = 0;
     for (const Slot& s : slots_)
-      if (s.hash) out.push_back(s);
-    return out;
+      if (s.hash) slots_[n++] = s;
+    slots_.resize(n);
+    slots_.shrink_to_fit();
+    used_ = 0;
+    return std::move(slots_);
   }
 
  private:
@@ -208,8 +214,7 @@ bool TableProfiler::step(size_t budget) {
       work_done_ += chunk.rows;
       budget -= std::min(budget, chunk.rows);
       if (st.next_chunk == column.chunk_count()) {
-        st.entries = st.counter.entries();
-        st.counter = ValueCounter();
+        st.entries = st.counter.take_entries();
       }
     }
     // Phase 2: derive the facts of each distinct value, weighted by its count.
