@@ -218,12 +218,13 @@ def main():
             tally.check(("(line %d)" % line) in stderr or re.search(line_pattern(line), stderr) is not None,
                         "invalid UTF-8 (%s): stderr names line %d" % (name, line), details)
 
-        # Empty file: a clear message and exit 3.
+        # Empty file: a clear message and exit 3 (CLI contract: 3 = input malformed).
         _, code, _, stderr = runner.convert(b"", ["--header", "yes"])
         tally.check(code == 3 and "empty" in stderr.lower(), "empty file: exit 3, message says the file is empty",
                     describe(b"", ["--header", "yes"], code, stderr))
 
-        # Header only: zero rows, exit 0, header written.
+        # Header only: zero rows, exit 0, header written (CLI contract: header row written when
+        # the input has one; RFC 4180 rule 3 makes the header an ordinary first line).
         for data in (b"site,species,height\n", b"site,species,height"):
             args = ["--delimiter", ",", "--header", "yes"]
             source, code, output, stderr = runner.convert(data, args)
@@ -233,7 +234,8 @@ def main():
             tally.check(code == 0 and isinstance(report, dict) and report.get("rows") == 0,
                         "header only %r: profile rows 0" % data, "exit %d\nreport: %s" % (code, reflib.show_value(report)))
 
-        # A 1 MiB field, with quotes, commas and line breaks inside, read and written back intact.
+        # A 1 MiB field, with quotes, commas and line breaks inside, read and written back intact
+        # (RFC 4180 §2 sets no field length limit; Python's csv module is the reader of the output).
         rng = random.Random(1048576)
         alphabet = 'abcdefghij ,"\n\r\t0123456789éß中\U0001F333'
         big = "".join(rng.choice(alphabet) for _ in range(1 << 20))
@@ -247,7 +249,7 @@ def main():
         tally.check(intact, "1 MiB quoted field (%d bytes of UTF-8) read and written back intact" % len(big.encode("utf-8")),
                     "exit %d\nstderr: %s\noutput size %s" % (code, stderr.strip()[:300], len(output) if output else None))
 
-        # Missing input file: I/O error, exit 4, the path named.
+        # Missing input file: I/O error, exit 4, the path named (CLI contract: 4 = I/O error).
         missing = os.path.join(workdir, "no_such_file.csv")
         code, _, stderr = reflib.run_tamis(binary, ["convert", missing, "-o", os.path.join(workdir, "x.csv")])
         tally.check(code == 4 and "no_such_file.csv" in stderr, "missing input file: exit 4 naming it",
@@ -256,7 +258,7 @@ def main():
         tally.check(code == 4 and "no_such_file.csv" in stderr, "profile of a missing file: exit 4 naming it",
                     "exit %d\nstderr: %s" % (code, stderr.strip()[:300]))
 
-        # Usage errors: exit 2.
+        # Usage errors: exit 2 (CLI contract; -1 is no count of lines, xyz no single delimiter).
         source = runner.write(b"site,species\nA1,oak\n")
         target = os.path.join(workdir, "usage.out.csv")
         for args in (["convert", source, "-o", target, "--no-such-option"],

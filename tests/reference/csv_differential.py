@@ -97,7 +97,7 @@ def generate_file(rng, index):
         columns = rng.choice([1, 1, 2, 3, 3, 4, 5, 6])
         rows = rng.randint(1, 25)
     if large:
-        rows = rng.randint(5000, 40000)
+        rows = rng.randint(3000, 15000)
     terminator = rng.choice(TERMINATORS)
     typed_looking_columns = {c for c in range(columns) if rng.random() < 0.2}
     records = []
