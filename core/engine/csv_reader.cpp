@@ -89,6 +89,7 @@ Status CsvReader::read_first_block() {
   }
   report_.encoding = guess.encoding;
   report_.encoding_reason = guess.reason;
+  utf8_was_guessed_ = !options_.encoding && guess.bom_length == 0 && guess.encoding == Encoding::utf8;
   buf_offset_ = guess.bom_length;
   if (guess.encoding == Encoding::utf8) {
     buf_ = std::move(raw_);
@@ -109,6 +110,26 @@ Status CsvReader::read_first_block() {
     return e;
   }
   return Ok{};
+}
+
+// The encoding was guessed from the first block. When a later byte turns out
+// not to be UTF-8 and everything before it was ASCII (which windows-1252
+// reads the same way), the rest of the input is windows-1252, as the
+// detection rule says; non-ASCII UTF-8 earlier means mixed encodings, an error.
+bool CsvReader::switch_to_windows1252(const char* invalid) {
+  if (!utf8_was_guessed_ || seen_non_ascii_) return false;
+  utf8_was_guessed_ = false;
+  auto t = Transcoder::open(Encoding::windows1252);
+  if (!t) return false;
+  transcoder_ = std::move(*t);
+  const uint64_t offset = buf_offset_ + static_cast<uint64_t>(invalid - buf_.data());
+  report_.encoding = Encoding::windows1252;
+  report_.encoding_reason = "byte offset " + std::to_string(offset) + " is the first non-ASCII byte and is not UTF-8";
+  const std::string rest = buf_.substr(pos_);
+  buf_.resize(pos_);
+  const uint64_t rest_offset = buf_offset_ + pos_;
+  report_.undefined_bytes += count_windows1252_undefined(rest, &report_.first_undefined_byte, rest_offset);
+  return static_cast<bool>(transcoder_->convert(rest, source_done_, buf_, rest_offset));
 }
 
 Status CsvReader::fill() {
@@ -222,8 +243,12 @@ CsvReader::Outcome CsvReader::parse_record() {
     int n = utf8::sequence_length(reinterpret_cast<const unsigned char*>(p),
                                   reinterpret_cast<const unsigned char*>(end));
     if (n < 0 && !eof) return Outcome::need_more;
-    if (n <= 0) return fail(error_at(p, "invalid UTF-8 byte sequence (is the file in another encoding? "
-                                        "choose it with --encoding)"));
+    if (n <= 0) {
+      if (switch_to_windows1252(p)) return Outcome::need_more;
+      return fail(error_at(p, "invalid UTF-8 byte sequence (is the file in another encoding? "
+                              "choose it with --encoding)"));
+    }
+    seen_non_ascii_ = true;
     p += n;
     return std::nullopt;
   };

@@ -98,6 +98,7 @@ class CsvReader {
   CsvReader(std::unique_ptr<ByteSource> source, std::string name, CsvOptions options);
   Status read_first_block();
   Status fill();
+  bool switch_to_windows1252(const char* invalid);
   void build_stop_tables();
   Outcome parse_record();
   Outcome fail(Error error);
@@ -142,6 +143,8 @@ class CsvReader {
   std::vector<TextChunkBuilder> builders_;
   std::vector<size_t> last_batch_bytes_;
   bool finished_ = false;
+  bool utf8_was_guessed_ = false;
+  bool seen_non_ascii_ = false;
 };
 
 // Reads a whole input into one table; on_progress gets (bytes read, total).

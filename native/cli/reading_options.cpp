@@ -16,6 +16,12 @@ void ReadingOptions::add_to(CLI::App& command) {
       ->check(CLI::IsMember({"auto", "yes", "no"}))
       ->capture_default_str();
   command.add_option("--skip-rows", skip_rows, "Physical lines to skip before the header (preamble)")
+      ->check(CLI::Validator(
+          [](const std::string& value) -> std::string {
+            const bool digits = !value.empty() && value.find_first_not_of("0123456789") == std::string::npos;
+            return digits ? "" : "expected a whole number of lines (0 or more), got '" + value + "'";
+          },
+          "LINES"))
       ->capture_default_str();
 }
 
