@@ -1,0 +1,206 @@
+// The columnar table (design §3): validation, copy-on-write sharing of
+// columns and chunks, random access across chunks, NULL as validity bits, and
+// memory accounting that counts a shared chunk once.
+#include <doctest/doctest.h>
+
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "table.hpp"
+
+using namespace tamis;
+
+namespace {
+
+std::shared_ptr<const ColumnChunk> text_chunk(const std::vector<std::string>& values) {
+  TextChunkBuilder builder;
+  for (const auto& v : values) builder.append(v);
+  return builder.finish();
+}
+
+std::shared_ptr<const ColumnChunk> number_chunk(const std::vector<int64_t>& values) {
+  auto chunk = std::make_shared<ColumnChunk>();
+  chunk->rows = values.size();
+  chunk->numbers = values;
+  return chunk;
+}
+
+ColumnPtr text_column(const std::vector<std::vector<std::string>>& chunks) {
+  auto column = std::make_shared<Column>(Type::text);
+  for (const auto& values : chunks) column->append_chunk(text_chunk(values));
+  return column;
+}
+
+ColumnPtr line_column(int64_t first, size_t rows) {
+  std::vector<int64_t> lines;
+  for (size_t i = 0; i < rows; ++i) lines.push_back(first + static_cast<int64_t>(i));
+  auto column = std::make_shared<Column>(Type::integer);
+  column->append_chunk(number_chunk(lines));
+  return column;
+}
+
+// prefix followed by n; written with += because GCC 12 at -O3 reports a
+// spurious -Wrestrict on "literal" + std::string.
+std::string numbered(const char* prefix, size_t n) {
+  std::string s = prefix;
+  s += std::to_string(n);
+  return s;
+}
+
+Table make(std::vector<std::string> names, std::vector<ColumnPtr> columns, ColumnPtr lines) {
+  auto table = Table::make(std::move(names), std::move(columns), std::move(lines));
+  REQUIRE(table.ok());
+  return std::move(table).value();
+}
+
+}  // namespace
+
+TEST_SUITE("unit_table") {
+
+TEST_CASE("unit_table: make checks one name per column and equal lengths") {
+  const ColumnPtr two = text_column({{"a", "b"}});
+  const ColumnPtr three = text_column({{"a", "b", "c"}});
+  CHECK(Table::make({"x", "y"}, {two, two}, line_column(2, 2)).ok());
+  auto missing_name = Table::make({"x"}, {two, two}, line_column(2, 2));
+  REQUIRE(!missing_name.ok());
+  CHECK(missing_name.error().kind == ErrorKind::usage);
+  CHECK(!Table::make({"x", "y"}, {two, three}, line_column(2, 2)).ok());
+  CHECK(!Table::make({"x"}, {two}, line_column(2, 3)).ok());
+
+  const Table t = make({"x", "y"}, {two, two}, line_column(2, 2));
+  CHECK(t.row_count() == 2);
+  CHECK(t.column_count() == 2);
+  CHECK(t.find("y") == std::optional<size_t>(1));
+  CHECK(!t.find("z").has_value());
+  CHECK(t.source_line(1) == 3);
+}
+
+TEST_CASE("unit_table: type names round trip") {
+  for (const Type type : {Type::text, Type::integer, Type::decimal, Type::date, Type::boolean})
+    CHECK(type_from_name(type_name(type)) == std::optional<Type>(type));
+  CHECK(!type_from_name("float").has_value());
+}
+
+TEST_CASE("unit_table: with_column shares every other column") {
+  const Table before = make({"a", "b", "c"}, {text_column({{"1"}}), text_column({{"2"}}), text_column({{"3"}})},
+                            line_column(2, 1));
+  const ColumnPtr replacement = text_column({{"two"}});
+  const Table after = before.with_column(1, replacement);
+  CHECK(after.column_ptr(0).get() == before.column_ptr(0).get());
+  CHECK(after.column_ptr(2).get() == before.column_ptr(2).get());
+  CHECK(after.source_lines_ptr().get() == before.source_lines_ptr().get());
+  CHECK(after.column_ptr(1).get() == replacement.get());
+  CHECK(after.column(1).text(0) == "two");
+  // The old version is untouched (undo relies on it).
+  CHECK(before.column(1).text(0) == "2");
+  CHECK(after.names() == before.names());
+}
+
+TEST_CASE("unit_table: append concatenates chunks without copying them") {
+  const Table first = make({"a", "n"}, {text_column({{"x", "y"}}), text_column({{"1", "2"}})}, line_column(2, 2));
+  const Table second = make({"a", "n"}, {text_column({{"z"}}), text_column({{"3"}})}, line_column(4, 1));
+  Table whole;
+  REQUIRE(whole.append(first).ok());
+  REQUIRE(whole.append(second).ok());
+  CHECK(whole.row_count() == 3);
+  REQUIRE(whole.column(0).chunk_count() == 2);
+  CHECK(whole.column(0).chunk_ptr(0).get() == first.column(0).chunk_ptr(0).get());
+  CHECK(whole.column(0).chunk_ptr(1).get() == second.column(0).chunk_ptr(0).get());
+  CHECK(whole.column(1).chunk_ptr(1).get() == second.column(1).chunk_ptr(0).get());
+  CHECK(whole.source_lines().chunk_ptr(1).get() == second.source_lines().chunk_ptr(0).get());
+  CHECK(whole.column(0).text(2) == "z");
+  CHECK(whole.source_line(2) == 4);
+  // The appended-to table's earlier version keeps its own length.
+  CHECK(first.row_count() == 2);
+  CHECK(first.column(0).chunk_count() == 1);
+
+  const Table other_names = make({"a", "m"}, {text_column({{"z"}}), text_column({{"3"}})}, line_column(4, 1));
+  const Status refused = whole.append(other_names);
+  CHECK(!refused.ok());
+  CHECK(whole.row_count() == 3);
+}
+
+TEST_CASE("unit_table: random access across chunk boundaries, empty chunks included") {
+  const ColumnPtr column = text_column({{"r0", "r1", "r2"}, {}, {"r3", "r4"}, {"r5", "r6", "r7", "r8"}});
+  REQUIRE(column->size() == 9);
+  CHECK(column->chunk_count() == 4);
+  CHECK(column->chunk_start(2) == 3);
+  for (size_t row = 0; row < 9; ++row) {
+    CAPTURE(row);
+    CHECK(column->text(row) == numbered("r", row));
+    CHECK(!column->is_null(row));
+  }
+  auto numbers = std::make_shared<Column>(Type::integer);
+  numbers->append_chunk(number_chunk({10}));
+  numbers->append_chunk(number_chunk({}));
+  numbers->append_chunk(number_chunk({}));
+  numbers->append_chunk(number_chunk({11, 12}));
+  for (size_t row = 0; row < 3; ++row) CHECK(numbers->number(row) == 10 + static_cast<int64_t>(row));
+}
+
+TEST_CASE("unit_table: NULL is a validity bit, not the empty string") {
+  TextChunkBuilder builder;
+  // NULLs on both sides of the 64-row boundary of the bitmap words.
+  const auto null_row = [](size_t row) { return row == 0 || row == 63 || row == 64 || row == 129; };
+  for (size_t row = 0; row < 131; ++row) {
+    if (null_row(row)) builder.append_null();
+    else if (row % 10 == 0) builder.append("");
+    else builder.append(numbered("v", row));
+  }
+  CHECK(builder.rows() == 131);
+  const auto chunk = builder.finish();
+  CHECK(chunk->rows == 131);
+  CHECK(chunk->has_nulls());
+  for (size_t row = 0; row < 131; ++row) {
+    CAPTURE(row);
+    const bool expected_null = null_row(row);
+    CHECK(chunk->is_null(row) == expected_null);
+    if (!expected_null) CHECK(chunk->text(row) == (row % 10 == 0 ? std::string() : numbered("v", row)));
+  }
+  // Through a Column, in a second chunk.
+  auto column = std::make_shared<Column>(Type::text);
+  column->append_chunk(text_chunk({"a", ""}));
+  column->append_chunk(chunk);
+  CHECK(!column->is_null(1));
+  CHECK(column->text(1) == "");
+  CHECK(column->is_null(2));
+  CHECK(column->is_null(2 + 64));
+  CHECK(!column->is_null(2 + 65));
+
+  // A chunk without NULLs carries no bitmap, and the builder starts afresh
+  // after finish().
+  TextChunkBuilder plain;
+  plain.append("x");
+  plain.append_null();
+  const auto with_null = plain.finish();
+  plain.append("y");
+  const auto without = plain.finish();
+  CHECK(with_null->is_null(1));
+  CHECK(!without->has_nulls());
+  CHECK(without->rows == 1);
+  CHECK(without->text(0) == "y");
+}
+
+TEST_CASE("unit_table: memory_bytes counts a shared chunk once") {
+  const ColumnPtr column = text_column({{std::string(1000, 'a'), std::string(3000, 'b')}});
+  const ColumnPtr lines = line_column(2, 2);
+  const Table single = make({"a"}, {column}, lines);
+  const Table twice = make({"a", "b"}, {column, column}, lines);
+  CHECK(column->memory_bytes() >= 4000);
+  CHECK(single.memory_bytes() == column->memory_bytes() + lines->memory_bytes());
+  CHECK(twice.memory_bytes() == single.memory_bytes());
+
+  // Appending a table to a copy of itself adds no new chunks, only references.
+  Table doubled = single;
+  REQUIRE(doubled.append(single).ok());
+  CHECK(doubled.row_count() == 4);
+  CHECK(doubled.memory_bytes() == single.memory_bytes());
+
+  // A new version that replaces one column costs only that column.
+  const ColumnPtr replacement = text_column({{"c", "d"}});
+  const Table replaced = twice.with_column(1, replacement);
+  CHECK(replaced.memory_bytes() == twice.memory_bytes() + replacement->memory_bytes());
+}
+
+}  // TEST_SUITE
