@@ -793,4 +793,53 @@ TEST_CASE("unit_csv_reader: another quote character") {
   CHECK(rows_of(read_ok("'it''s, here',\"plain\"\n", options)) == Rows{{"it's, here", "\"plain\""}});
 }
 
+TEST_CASE("unit_csv_reader: ASCII for 64 KiB, then windows-1252 - the rest is read as windows-1252") {
+  // encoding.hpp's rule: UTF-8 if well-formed, otherwise windows-1252. ASCII
+  // reads the same in both, so a file whose first non-ASCII byte is late and
+  // not UTF-8 is windows-1252 (0xE9 -> U+00E9, 0x80 -> U+20AC, 0x81 -> U+0081:
+  // WHATWG index-windows-1252, see above).
+  std::string text = "id,name\n";
+  for (int i = 0; text.size() < 80000; ++i) text += std::to_string(i) + ",plain\n";
+  const std::string late = "late,\"two\nlines caf\xE9\"\nlast,\x80\x81\n";
+  const size_t late_offset = text.size();
+  text += late;
+  ReadReport report;
+  const Table t = read_ok(text, CsvOptions{}, &report);
+  CHECK(report.encoding == Encoding::windows1252);
+  CHECK(contains(report.encoding_reason, std::to_string(late_offset + late.find('\xE9'))));
+  REQUIRE(t.row_count() >= 2);
+  CHECK(t.column(1).text(t.row_count() - 2) == "two\nlines caf\xC3\xA9");
+  CHECK(t.column(1).text(t.row_count() - 1) == "\xE2\x82\xAC\xC2\x81");
+  CHECK(report.undefined_bytes == 1);
+  REQUIRE(report.first_undefined_byte.has_value());
+  CHECK(*report.first_undefined_byte == late_offset + late.find('\x81'));
+  // One-byte reads switch at the same place and give the same table.
+  ReadReport split_report;
+  auto split = read_csv(std::make_unique<SplittingSource>(text, std::vector<size_t>{1}), "split.csv", CsvOptions{},
+                        &split_report);
+  REQUIRE_MESSAGE(split.ok(), (split.ok() ? std::string() : split.error().to_string()));
+  CHECK(first_difference(t, *split) == "");
+  CHECK(split_report.undefined_bytes == 1);
+  CHECK(split_report.first_undefined_byte == report.first_undefined_byte);
+}
+
+TEST_CASE("unit_csv_reader: progress counts source bytes up to the total") {
+  std::string text = "id,name\n";
+  for (int i = 0; text.size() < 3000000; ++i) text += std::to_string(i) + ",a name of some length\n";
+  std::vector<uint64_t> done;
+  std::optional<uint64_t> total;
+  CsvOptions options = kHeader;
+  options.batch_rows = 20000;
+  const auto t = read_csv(memory_source(text), "test.csv", options, nullptr, {},
+                          [&](uint64_t bytes, std::optional<uint64_t> size) {
+                            done.push_back(bytes);
+                            total = size;
+                          });
+  REQUIRE(t.ok());
+  REQUIRE(done.size() > 2);
+  CHECK(std::is_sorted(done.begin(), done.end()));
+  CHECK(total == std::optional<uint64_t>(text.size()));
+  CHECK(done.back() == text.size());
+}
+
 }  // TEST_SUITE
