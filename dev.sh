@@ -1,0 +1,323 @@
+#!/usr/bin/env bash
+# One entry point for developers and CI on Debian 12:
+#   ./dev.sh demo    install what is missing, build, run the CLI on the demo data
+#   ./dev.sh test    install what is missing, build and run every test suite
+#                    (native, WebAssembly under node, ASan/UBSan + fuzzers)
+#   ./dev.sh build   install what is missing, native build only
+#   ./dev.sh install install everything `test` needs, build nothing
+# `./dev.sh test native|wasm|asan ...` runs only the named test suites.
+# Environment: TAMIS_JOBS (default 2), TAMIS_FUZZ_SECONDS (default 60, shared
+# by all fuzzers), TAMIS_WASM_CACHE (see web/deps/build.sh).
+set -euo pipefail
+
+repo=$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)
+cd "$repo"
+
+jobs=${TAMIS_JOBS:-2}
+fuzz_seconds=${TAMIS_FUZZ_SECONDS:-60}
+export DEBIAN_FRONTEND=noninteractive
+# Debian's emscripten needs node modules (acorn) from Debian's node tree, and
+# runs much faster on the system Python than through a python3 shim on PATH.
+export NODE_PATH=/usr/share/nodejs
+export EMSDK_PYTHON=${EMSDK_PYTHON:-/usr/bin/python3}
+
+# Enough to build the engine and the CLI and run the demo.
+build_packages=(
+  build-essential cmake ninja-build pkg-config
+  libicu-dev libhowardhinnant-date-dev doctest-dev nlohmann-json3-dev
+  libcli11-dev libxxhash-dev libfast-float-dev
+)
+# Additionally needed by `test`: the WebAssembly toolchain and ICU tools for
+# web/deps, clang for the sanitizer/fuzz build, Python and node for the
+# reference tests, dpkg-dev for `apt-get source`.
+test_packages=(
+  icu-devtools emscripten clang-14 libclang-rt-14-dev
+  python3 python3-numpy python3-pandas unicode-data dpkg-dev
+)
+
+started_at=$EPOCHREALTIME
+current_phase=
+phases_ran=false
+tests_ran=false
+tests_passed=0
+tests_failed=0
+
+seconds_since() { awk -v a="$1" -v b="$EPOCHREALTIME" 'BEGIN { printf "%.1f", b - a }'; }
+
+on_exit() {
+  local status=$?
+  if [[ -n $current_phase ]]; then
+    echo "dev.sh: phase '$current_phase' FAILED (exit status $status)" >&2
+  fi
+  if $phases_ran; then
+    echo "== total: $(seconds_since "$started_at") s"
+  fi
+  if $tests_ran; then
+    echo "tests: $tests_passed passed, $tests_failed failed"
+  fi
+}
+trap on_exit EXIT
+
+run_phase() {
+  current_phase=$1
+  phases_ran=true
+  shift
+  echo "== phase $current_phase"
+  local phase_started_at=$EPOCHREALTIME
+  "$@"
+  echo "== phase $current_phase: $(seconds_since "$phase_started_at") s"
+  current_phase=
+}
+
+as_root() {
+  if [[ $(id -u) -eq 0 ]]; then
+    "$@"
+  else
+    sudo "$@"
+  fi
+}
+
+apt_get() {
+  # Other apt users on the machine may hold the lock for a while.
+  as_root apt-get -o DPkg::Lock::Timeout=600 -o Acquire::Retries=3 "$@"
+}
+
+is_installed() {
+  [[ $(dpkg-query -W -f='${db:Status-Abbrev}' "$1" 2>/dev/null) == "ii " ]]
+}
+
+# apt-get source needs deb-src entries; add them next to Debian's own entries
+# in a separate file so the system file stays untouched.
+deb_src_file=/etc/apt/sources.list.d/tamis-deb-src.sources
+deb_src_enabled() {
+  grep -qsE '^Types:.*deb-src' /etc/apt/sources.list.d/*.sources ||
+    grep -qsE '^deb-src ' /etc/apt/sources.list /etc/apt/sources.list.d/*.list
+}
+
+enable_deb_src() {
+  local debian_sources=/etc/apt/sources.list.d/debian.sources
+  if [[ -f $debian_sources ]]; then
+    sed -E 's/^Types:.*/Types: deb-src/' "$debian_sources" | as_root tee "$deb_src_file" >/dev/null
+  else
+    grep -hE '^deb [^#]*debian' /etc/apt/sources.list |
+      sed -E 's/^deb /deb-src /' | as_root tee /etc/apt/sources.list.d/tamis-deb-src.list >/dev/null
+  fi
+  echo "enabled deb-src entries for apt-get source"
+}
+
+install_debian_packages() {
+  local wanted=("$@") missing=() package need_update=false
+  for package in "${wanted[@]}"; do
+    is_installed "$package" || missing+=("$package")
+  done
+  # A node from another origin (e.g. NodeSource, which bundles npm) must not be
+  # replaced by Debian's, whose npm package conflicts with it.
+  command -v node >/dev/null || missing+=(nodejs)
+  command -v npm >/dev/null || missing+=(npm)
+
+  if [[ $wanted_deb_src == true ]] && ! deb_src_enabled; then
+    enable_deb_src
+    need_update=true
+  fi
+  if ((${#missing[@]})); then
+    echo "installing: ${missing[*]}"
+    need_update=true
+  fi
+  if $need_update; then
+    apt_get update -q
+  fi
+  if [[ $wanted_deb_src == true && $(apt-cache showsrc --only-source icu 2>/dev/null) != *Version:* ]]; then
+    apt_get update -q
+  fi
+  if ((${#missing[@]})); then
+    apt_get install -y -q --no-install-recommends "${missing[@]}"
+  else
+    echo "all ${#wanted[@]} Debian packages already installed"
+  fi
+}
+
+# Every tests/**/package.json gets its node_modules; a stamp of the manifest
+# and lock file skips the reinstall when nothing changed.
+install_npm_packages() {
+  local manifest dir stamp wanted_stamp
+  while IFS= read -r manifest; do
+    dir=$(dirname "$manifest")
+    stamp=$dir/node_modules/.tamis-installed
+    wanted_stamp=$(cat "$dir/package.json" "$dir/package-lock.json" 2>/dev/null | sha256sum | cut -d' ' -f1)
+    if [[ -f $stamp && $(cat "$stamp") == "$wanted_stamp" ]]; then
+      echo "npm packages in $dir are up to date"
+      continue
+    fi
+    echo "npm install in $dir"
+    # Test tools must never fetch a browser of their own (Debian's chromium is used).
+    if [[ -f $dir/package-lock.json ]]; then
+      (cd "$dir" && PUPPETEER_SKIP_DOWNLOAD=1 PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD=1 npm ci --no-audit --no-fund)
+    else
+      (cd "$dir" && PUPPETEER_SKIP_DOWNLOAD=1 PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD=1 npm install --no-audit --no-fund)
+    fi
+    echo "$wanted_stamp" >"$stamp"
+  done < <(find tests -name node_modules -prune -o -name package.json -print | sort)
+}
+
+install_for_build() {
+  wanted_deb_src=false
+  install_debian_packages "${build_packages[@]}"
+}
+
+install_for_test() {
+  wanted_deb_src=true
+  install_debian_packages "${build_packages[@]}" "${test_packages[@]}"
+  install_npm_packages
+}
+
+native_build() {
+  cmake -S . -B build -G Ninja -DCMAKE_BUILD_TYPE=Release
+  cmake --build build -j"$jobs"
+}
+
+# Runs ctest, keeps its summary line visible and adds its counts to the total.
+run_ctest() {
+  local build_dir=$1 log status=0 summary failed total
+  shift
+  log=$build_dir/ctest-output.log
+  # The timeout only stops a hung test from eating CI's time; no test asserts on time.
+  ctest --test-dir "$build_dir" --output-on-failure --no-tests=error --timeout 900 -j"$jobs" "$@" 2>&1 |
+    tee "$log" || status=$?
+  tests_ran=true
+  summary=$(grep -Eo '[0-9]+ tests failed out of [0-9]+' "$log" | tail -n1 || true)
+  if [[ -n $summary ]]; then
+    read -r failed _ _ _ _ total <<<"$summary"
+    tests_failed=$((tests_failed + failed))
+    tests_passed=$((tests_passed + total - failed))
+  elif ((status != 0)); then
+    tests_failed=$((tests_failed + 1))
+  fi
+  if ((status != 0)); then
+    echo "dev.sh: ctest in $build_dir failed" >&2
+    return "$status"
+  fi
+}
+
+wasm_prefix=
+wasm_deps() {
+  wasm_prefix=$(web/deps/build.sh)
+  echo "WebAssembly dependencies: $wasm_prefix"
+}
+
+wasm_build() {
+  # emcmake's default emulator adds --experimental-wasm-threads, which node 20 rejects.
+  emcmake cmake -S . -B build-wasm -G Ninja -DCMAKE_BUILD_TYPE=Release -DTAMIS_WASM_DEPS="$wasm_prefix" \
+    -DCMAKE_CROSSCOMPILING_EMULATOR="$(command -v node)"
+  cmake --build build-wasm -j"$jobs"
+}
+
+asan_build() {
+  # The reference tests drive the release CLI; this build runs unit tests and fuzzers.
+  CC=clang-14 CXX=clang++-14 cmake -S . -B build-asan -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo \
+    -DTAMIS_FUZZ=ON -DTAMIS_REFERENCE_TESTS=OFF
+  cmake --build build-asan -j"$jobs"
+}
+
+asan_tests() {
+  ASAN_OPTIONS=${ASAN_OPTIONS:-detect_leaks=1} UBSAN_OPTIONS=${UBSAN_OPTIONS:-print_stacktrace=1} \
+    run_ctest build-asan
+}
+
+# Each fuzzer gets an equal share of TAMIS_FUZZ_SECONDS; the corpus grows in
+# the build directory between runs, seeds come from tests/fuzz/corpus/NAME.
+# A fuzzer run counts as one test in the summary line.
+run_fuzzers() {
+  local fuzzers=() fuzzer name share corpus seeds corpus_dirs log status
+  mapfile -t fuzzers < <(find build-asan/tests/fuzz -maxdepth 1 -type f -name 'fuzz_*' -perm -u+x 2>/dev/null | sort)
+  if ((${#fuzzers[@]} == 0)); then
+    echo "no fuzzers built"
+    return
+  fi
+  share=$((fuzz_seconds / ${#fuzzers[@]}))
+  ((share > 0)) || share=1
+  for fuzzer in "${fuzzers[@]}"; do
+    name=$(basename "$fuzzer")
+    corpus=build-asan/fuzz-corpus/$name
+    seeds=tests/fuzz/corpus/$name
+    log=build-asan/fuzz-$name.log
+    mkdir -p "$corpus" build-asan/fuzz-artifacts
+    corpus_dirs=("$corpus")
+    [[ -d $seeds ]] && corpus_dirs+=("$seeds")
+    status=0
+    "$fuzzer" -max_total_time="$share" -print_final_stats=1 \
+      -artifact_prefix=build-asan/fuzz-artifacts/"$name"- "${corpus_dirs[@]}" >"$log" 2>&1 || status=$?
+    tests_ran=true
+    if ((status != 0)); then
+      tests_failed=$((tests_failed + 1))
+      tail -n 60 "$log" >&2
+      echo "dev.sh: fuzzer $name failed (exit status $status); reproducer in build-asan/fuzz-artifacts/, log $log" >&2
+      return "$status"
+    fi
+    tests_passed=$((tests_passed + 1))
+    echo "fuzz $name: ${share} s, $(grep -Eo 'stat::number_of_executed_units: [0-9]+' "$log" | grep -Eo '[0-9]+$' || echo '?') runs, no crash"
+  done
+}
+
+run_demo() {
+  local demo_file=assets/demo/tree_survey.csv
+  if [[ ! -f $demo_file ]]; then
+    echo "demo data $demo_file not there yet: skipping the demo run"
+    return
+  fi
+  build/native/cli/tamis profile "$demo_file"
+}
+
+want_suite() {
+  local suite=$1
+  ((${#selected_suites[@]} == 0)) && return 0
+  [[ " ${selected_suites[*]} " == *" $suite "* ]]
+}
+
+usage() {
+  sed -n '2,10p' "${BASH_SOURCE[0]}" | sed 's/^# \{0,1\}//'
+}
+
+command=${1:-}
+shift || true
+case $command in
+  demo)
+    run_phase install install_for_build
+    run_phase build native_build
+    run_phase demo run_demo
+    ;;
+  build)
+    run_phase install install_for_build
+    run_phase build native_build
+    ;;
+  test)
+    selected_suites=("$@")
+    for suite in "${selected_suites[@]}"; do
+      [[ $suite == native || $suite == wasm || $suite == asan ]] || { usage >&2; exit 2; }
+    done
+    run_phase install install_for_test
+    if want_suite native; then
+      run_phase native-build native_build
+      run_phase native-tests run_ctest build
+    fi
+    if want_suite wasm; then
+      run_phase wasm-deps wasm_deps
+      run_phase wasm-build wasm_build
+      run_phase wasm-tests run_ctest build-wasm
+    fi
+    if want_suite asan; then
+      run_phase asan-build asan_build
+      run_phase asan-tests asan_tests
+      run_phase fuzz run_fuzzers
+    fi
+    ;;
+  install)
+    run_phase install install_for_test
+    ;;
+  -h | --help | help)
+    usage
+    ;;
+  *)
+    usage >&2
+    exit 2
+    ;;
+esac
