@@ -1,6 +1,7 @@
 #include "change.hpp"
 
 #include <algorithm>
+#include <utility>
 
 namespace tamis {
 
@@ -12,7 +13,10 @@ void ChangeRecord::note_removed(uint64_t line, const std::string& reason) {
 void ChangeRecord::note_rejected(uint64_t line, const std::string& reason) {
   ++rows_rejected;
   if (removed.size() < kListedRows) removed.push_back({line, reason});
+  rejected_.push_back({line, reason});
 }
+
+std::vector<RemovedRow> ChangeRecord::take_rejected() { return std::exchange(rejected_, {}); }
 
 void ChangeRecord::note_change(const std::string& column, std::string_view before, std::string_view after) {
   ++cells_changed[column];
@@ -39,6 +43,7 @@ void ChangeRecord::merge(const ChangeRecord& other) {
     if (it != samples_.end()) it->count += s.count;
     else if (samples_.size() < kListedChanges) samples_.push_back(s);
   }
+  rejected_.insert(rejected_.end(), other.rejected_.begin(), other.rejected_.end());
   for (const auto& c : other.conflicts) conflicts.push_back(c);
   for (const auto& w : other.warnings)
     if (std::find(warnings.begin(), warnings.end(), w) == warnings.end()) warnings.push_back(w);

@@ -39,6 +39,9 @@ class ChangeRecord {
 
   void note_removed(uint64_t line, const std::string& reason);
   void note_rejected(uint64_t line, const std::string& reason);
+  // Every rejected row since the last call, uncapped, for the rejects file
+  // (the runner takes them after each batch, so they never pile up).
+  std::vector<RemovedRow> take_rejected();
   void note_change(const std::string& column, std::string_view before, std::string_view after);
   const std::vector<ValueChange>& samples() const { return samples_; }
   // Adds another batch's record of the same step.
@@ -46,6 +49,7 @@ class ChangeRecord {
 
  private:
   std::vector<ValueChange> samples_;
+  std::vector<RemovedRow> rejected_;
 };
 
 }  // namespace tamis

@@ -338,6 +338,8 @@ Status RecipeRun::observe(size_t pass, const Table& batch) {
   const size_t at = observe_at_[pass];
   auto t = run_steps(at, batch, pass_states_, scratch_changes_);
   if (!t) return t.take_error();
+  // Rows rejected while observing are rejected again, and counted, in the last pass.
+  for (ChangeRecord& c : scratch_changes_) c.take_rejected();
   return recipe_.steps[at].step->observe(*t, states_[at].get());
 }
 
@@ -350,6 +352,14 @@ void RecipeRun::end_pass(size_t) {
 
 Result<Table> RecipeRun::apply(const Table& batch) {
   return run_steps(recipe_.steps.size(), batch, states_, changes_);
+}
+
+std::vector<RecipeRun::Rejected> RecipeRun::take_rejected() {
+  std::vector<Rejected> out;
+  for (size_t j = 0; j < changes_.size(); ++j)
+    for (RemovedRow& row : changes_[j].take_rejected()) out.push_back({recipe_.steps[j].index, std::move(row)});
+  std::stable_sort(out.begin(), out.end(), [](const Rejected& a, const Rejected& b) { return a.row.line < b.row.line; });
+  return out;
 }
 
 Status RecipeRun::finish() {

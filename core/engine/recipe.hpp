@@ -95,6 +95,13 @@ class RecipeRun {
   Result<Table> apply(const Table& batch);
   Status finish();
   const std::vector<ChangeRecord>& changes() const { return changes_; }
+  // The rows the steps rejected since the last call, in source-line order,
+  // each with the recipe index of the step that rejected it.
+  struct Rejected {
+    int step;
+    RemovedRow row;
+  };
+  std::vector<Rejected> take_rejected();
 
  private:
   Result<Table> run_steps(size_t end, const Table& batch, std::vector<std::unique_ptr<StepState>>& states,

@@ -44,6 +44,34 @@ struct ProfileArgs {
 CLI::App* add_profile_command(CLI::App& app, ProfileArgs& args);
 int run_profile(const ProfileArgs& args);
 
+struct RunArgs {
+  std::string recipe;
+  std::string input;
+  std::string output = "-";
+  std::string report;
+  std::string rejects;
+  std::string metadata;
+  std::string max_rejects;
+  size_t batch_rows = 0;
+};
+CLI::App* add_run_command(CLI::App& app, RunArgs& args);
+int run_run(const RunArgs& args);
+
+struct CheckArgs {
+  std::string recipe;
+  std::string input;
+  std::string max_rejects;
+};
+CLI::App* add_check_command(CLI::App& app, CheckArgs& args);
+int run_check(const CheckArgs& args);
+
+struct ExplainArgs {
+  std::string recipe;
+  std::string input;
+};
+CLI::App* add_explain_command(CLI::App& app, ExplainArgs& args);
+int run_explain(const ExplainArgs& args);
+
 // Prints "tamis: <error>" on stderr and returns the error's exit code.
 int report_error(const Error& error);
 

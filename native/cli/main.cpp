@@ -26,6 +26,12 @@ int main(int argc, char** argv) {
   ProfileArgs profile_args;
   CLI::App* convert = add_convert_command(app, convert_args);
   CLI::App* profile = add_profile_command(app, profile_args);
+  RunArgs run_args;
+  CheckArgs check_args;
+  ExplainArgs explain_args;
+  CLI::App* run = add_run_command(app, run_args);
+  CLI::App* check = add_check_command(app, check_args);
+  CLI::App* explain = add_explain_command(app, explain_args);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -33,5 +39,8 @@ int main(int argc, char** argv) {
   }
   if (convert->parsed()) return run_convert(convert_args);
   if (profile->parsed()) return run_profile(profile_args);
+  if (run->parsed()) return run_run(run_args);
+  if (check->parsed()) return run_check(check_args);
+  if (explain->parsed()) return run_explain(explain_args);
   return 2;
 }
