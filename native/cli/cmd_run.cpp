@@ -304,6 +304,9 @@ int run_run(const RunArgs& args) {
     return report_error(input_error(display, 0, message));
   };
 
+  // A decimal's scale can depend on the data (parse_number without scale):
+  // the columns written are the authority for the report and the metadata.
+  std::optional<Schema> written_schema;
   Progress progress(passes > 1 ? "pass " + std::to_string(passes) + " of " + std::to_string(passes) : "running",
                     reader->total_bytes());
   {
@@ -327,7 +330,8 @@ int run_run(const RunArgs& args) {
       failing.clear();
       if (cap->count && cap->exceeded(rejected, 0)) return over_cap(0);
       if (Status s = writer->write_table(*out); !s) return report_error(s.error());
-      nulls.observe(*out);
+      if (!args.metadata.empty()) nulls.observe(*out);
+      if (!written_schema) written_schema = schema_of(*out);
       facts.rows_written += out->row_count();
       progress.update(reader->bytes_read());
     }
@@ -348,6 +352,7 @@ int run_run(const RunArgs& args) {
 
   if (Status s = writer->finish(); !s) return report_error(s.error());
   if (Status s = rejects.commit(); !s) return report_error(s.error());
+  if (written_schema) compiled->output = *written_schema;
   if (!args.report.empty())
     if (Status s = write_json_file(args.report, run_report_json(*recipe, *compiled, run.changes(), facts)); !s)
       return report_error(s.error());
