@@ -412,10 +412,12 @@ Status CsvReader::read_header() {
     }
     break;
   }
-  if (record_problem_) return input_error(name_, record_line_, *record_problem_);
-  std::vector<std::string> first;
-  for (size_t i = 0; i < fields_.size(); ++i) first.emplace_back(field(i));
+  // A malformed header leaves no column names to trust; a malformed first
+  // data record is handled like any other record by next_batch().
+  if (record_problem_ && report_.header) return input_error(name_, record_line_, *record_problem_);
   if (report_.header) {
+    std::vector<std::string> first;
+    for (size_t i = 0; i < fields_.size(); ++i) first.emplace_back(field(i));
     names_ = unique_names(std::move(first), report_.header_notes);
     pos_ = next_pos_;
     line_ = next_line_;

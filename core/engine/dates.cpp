@@ -52,6 +52,8 @@ void append_padded(std::string& out, unsigned value, int width) {
 }  // namespace
 
 std::optional<int32_t> days_from_civil(int year, unsigned month, unsigned day) {
+  // date::year holds a short; outside its range a year would wrap silently.
+  if (year < static_cast<int>(date::year::min()) || year > static_cast<int>(date::year::max())) return std::nullopt;
   const date::year_month_day ymd{date::year{year}, date::month{month}, date::day{day}};
   if (!ymd.ok()) return std::nullopt;
   return static_cast<int32_t>(date::sys_days{ymd}.time_since_epoch().count());

@@ -127,10 +127,65 @@ std::vector<ValueCount> most_frequent(std::vector<ValueCount> all, size_t limit)
 }
 
 std::string format_number(double v, int scale) {
+  if (v == 0) v = 0;  // no negative zero in canonical forms
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.*f", scale, v);
   return buf;
 }
+
+// A number in plain notation kept as digits, so min and max stay exact at
+// any length (an 18-digit identifier is not rounded through a double).
+struct PlainNumber {
+  bool negative = false;
+  std::string whole;     // without leading zeros; empty means 0
+  std::string fraction;  // without trailing zeros
+
+  static std::optional<PlainNumber> parse(std::string_view t) {
+    if (t.find_first_of("eE") != std::string_view::npos) return std::nullopt;
+    PlainNumber n;
+    if (!t.empty() && (t[0] == '+' || t[0] == '-')) n.negative = t[0] == '-', t.remove_prefix(1);
+    const size_t dot = std::min(t.find('.'), t.size());
+    n.whole = std::string(t.substr(0, dot));
+    n.whole.erase(0, std::min(n.whole.find_first_not_of('0'), n.whole.size()));
+    if (dot < t.size()) n.fraction = std::string(t.substr(dot + 1));
+    while (!n.fraction.empty() && n.fraction.back() == '0') n.fraction.pop_back();
+    if (n.whole.empty() && n.fraction.empty()) n.negative = false;
+    return n;
+  }
+
+  friend bool operator<(const PlainNumber& a, const PlainNumber& b) {
+    if (a.negative != b.negative) return a.negative;
+    const auto magnitude_less = [](const PlainNumber& x, const PlainNumber& y) {
+      if (x.whole.size() != y.whole.size()) return x.whole.size() < y.whole.size();
+      if (x.whole != y.whole) return x.whole < y.whole;
+      return x.fraction < y.fraction;  // no trailing zeros, so text order is numeric order
+    };
+    return a.negative ? magnitude_less(b, a) : magnitude_less(a, b);
+  }
+
+  std::string text(int scale) const {
+    std::string out = negative ? "-" : "";
+    out += whole.empty() ? "0" : whole;
+    if (scale > 0) out += "." + fraction + std::string(static_cast<size_t>(scale) - fraction.size(), '0');
+    return out;
+  }
+};
+
+// Exact running minimum and maximum of plain-notation numbers; gives up
+// (and the caller falls back to doubles) when a value uses an exponent.
+struct PlainRange {
+  std::optional<PlainNumber> min, max;
+  bool exact = true;
+  void add(std::string_view t) {
+    const auto n = PlainNumber::parse(t);
+    if (!n) {
+      exact = false;
+      return;
+    }
+    if (!min || *n < *min) min = n;
+    if (!max || *max < *n) max = n;
+  }
+};
 
 }  // namespace
 
@@ -175,6 +230,7 @@ struct TableProfiler::ColumnState {
   std::vector<ValueCounter::Slot> entries;  // filled when counting is done
   size_t next_entry = 0;
   std::vector<std::pair<double, uint64_t>> numbers;
+  PlainRange integer_range, number_range;
   int scale = 0;
   std::optional<int32_t> date_min, date_max;
   std::optional<std::string_view> text_min, text_max;
@@ -242,10 +298,14 @@ bool TableProfiler::step(size_t budget) {
       } else {
         out.non_blank += n;
         const NumberShape shape = number_shape(t);
-        if (shape == NumberShape::integer) out.fit_integer += n;
+        if (shape == NumberShape::integer) {
+          out.fit_integer += n;
+          st.integer_range.add(t);
+        }
         if (auto d = parse_double(t)) {
           out.fit_number += n;
           st.numbers.emplace_back(*d, n);
+          st.number_range.add(t);
           st.scale = std::max(st.scale, fraction_digits(t));
         } else if (auto date = parse_any_date(t)) {
           out.fit_date += n;
@@ -295,8 +355,14 @@ bool TableProfiler::step(size_t budget) {
       out.mean = static_cast<double>(mean);
       if (count > 1) out.std_dev = static_cast<double>(std::sqrt(squares / (count - 1)));
       const int scale = out.type == Type::integer ? 0 : st.scale;
-      out.min = format_number(st.numbers.front().first, scale);
-      out.max = format_number(st.numbers.back().first, scale);
+      const PlainRange& range = out.type == Type::integer ? st.integer_range : st.number_range;
+      if (range.exact && range.min) {
+        out.min = range.min->text(scale);
+        out.max = range.max->text(scale);
+      } else {
+        out.min = format_number(st.numbers.front().first, scale);
+        out.max = format_number(st.numbers.back().first, scale);
+      }
       // Type 7 quantiles (R's default, numpy's "linear"; Hyndman & Fan,
       // "Sample quantiles in statistical packages", 1996): with h = (n-1)p,
       // Q = x[floor h] + (h - floor h)(x[floor h + 1] - x[floor h]). The values
@@ -326,6 +392,8 @@ bool TableProfiler::step(size_t budget) {
     }
     state_.reset();
     ++column_;
+    // The per-value estimate above is approximate; a finished column counts in full.
+    work_done_ = static_cast<uint64_t>(column_) * 2 * table_.row_count();
   }
   return true;
 }
