@@ -38,25 +38,49 @@ test_packages=(
 started_at=$EPOCHREALTIME
 current_phase=
 phases_ran=false
-tests_ran=false
-tests_passed=0
-tests_failed=0
+failed_suites=()
+# Test suites run in subshells, so their pass/fail counts go through a file:
+# one "PASSED FAILED" line per ctest or fuzzer run.
+test_counts=$(mktemp)
 
 seconds_since() { awk -v a="$1" -v b="$EPOCHREALTIME" 'BEGIN { printf "%.1f", b - a }'; }
 
-on_exit() {
-  local status=$?
+report_failed_phase() {
+  local status=$1
   if [[ -n $current_phase ]]; then
     echo "dev.sh: phase '$current_phase' FAILED (exit status $status)" >&2
   fi
+}
+
+on_exit() {
+  local status=$?
+  report_failed_phase "$status"
   if $phases_ran; then
     echo "== total: $(seconds_since "$started_at") s"
   fi
-  if $tests_ran; then
-    echo "tests: $tests_passed passed, $tests_failed failed"
+  if [[ -s $test_counts ]]; then
+    awk '{ passed += $1; failed += $2 } END { printf "tests: %d passed, %d failed\n", passed, failed }' "$test_counts"
   fi
+  rm -f "$test_counts"
 }
 trap on_exit EXIT
+
+# Runs one test suite (a function calling run_phase) with errexit in a
+# subshell: a failure ends that suite, and the next suite still runs.
+run_suite() {
+  local suite=$1 status
+  set +e
+  (
+    set -e
+    trap 'report_failed_phase $?' EXIT
+    "suite_$suite"
+  )
+  status=$?
+  set -e
+  if ((status != 0)); then
+    failed_suites+=("$suite")
+  fi
+}
 
 run_phase() {
   current_phase=$1
@@ -183,14 +207,12 @@ run_ctest() {
   # The timeout only stops a hung test from eating CI's time; no test asserts on time.
   ctest --test-dir "$build_dir" --output-on-failure --no-tests=error --timeout 900 -j"$jobs" "$@" 2>&1 |
     tee "$log" || status=$?
-  tests_ran=true
   summary=$(grep -Eo '[0-9]+ tests failed out of [0-9]+' "$log" | tail -n1 || true)
   if [[ -n $summary ]]; then
     read -r failed _ _ _ _ total <<<"$summary"
-    tests_failed=$((tests_failed + failed))
-    tests_passed=$((tests_passed + total - failed))
+    echo "$((total - failed)) $failed" >>"$test_counts"
   elif ((status != 0)); then
-    tests_failed=$((tests_failed + 1))
+    echo "0 1" >>"$test_counts"
   fi
   if ((status != 0)); then
     echo "dev.sh: ctest in $build_dir failed" >&2
@@ -202,6 +224,23 @@ wasm_prefix=
 wasm_deps() {
   wasm_prefix=$(web/deps/build.sh)
   echo "WebAssembly dependencies: $wasm_prefix"
+}
+
+suite_native() {
+  run_phase native-build native_build
+  run_phase native-tests run_ctest build
+}
+
+suite_wasm() {
+  run_phase wasm-deps wasm_deps
+  run_phase wasm-build wasm_build
+  run_phase wasm-tests run_ctest build-wasm
+}
+
+suite_asan() {
+  run_phase asan-build asan_build
+  run_phase asan-tests asan_tests
+  run_phase fuzz run_fuzzers
 }
 
 wasm_build() {
@@ -246,14 +285,13 @@ run_fuzzers() {
     status=0
     "$fuzzer" -max_total_time="$share" -print_final_stats=1 \
       -artifact_prefix=build-asan/fuzz-artifacts/"$name"- "${corpus_dirs[@]}" >"$log" 2>&1 || status=$?
-    tests_ran=true
     if ((status != 0)); then
-      tests_failed=$((tests_failed + 1))
+      echo "0 1" >>"$test_counts"
       tail -n 60 "$log" >&2
       echo "dev.sh: fuzzer $name failed (exit status $status); reproducer in build-asan/fuzz-artifacts/, log $log" >&2
       return "$status"
     fi
-    tests_passed=$((tests_passed + 1))
+    echo "1 0" >>"$test_counts"
     echo "fuzz $name: ${share} s, $(grep -Eo 'stat::number_of_executed_units: [0-9]+' "$log" | grep -Eo '[0-9]+$' || echo '?') runs, no crash"
   done
 }
@@ -295,19 +333,14 @@ case $command in
       [[ $suite == native || $suite == wasm || $suite == asan ]] || { usage >&2; exit 2; }
     done
     run_phase install install_for_test
-    if want_suite native; then
-      run_phase native-build native_build
-      run_phase native-tests run_ctest build
-    fi
-    if want_suite wasm; then
-      run_phase wasm-deps wasm_deps
-      run_phase wasm-build wasm_build
-      run_phase wasm-tests run_ctest build-wasm
-    fi
-    if want_suite asan; then
-      run_phase asan-build asan_build
-      run_phase asan-tests asan_tests
-      run_phase fuzz run_fuzzers
+    for suite in native wasm asan; do
+      if want_suite "$suite"; then
+        run_suite "$suite"
+      fi
+    done
+    if ((${#failed_suites[@]})); then
+      echo "dev.sh: FAILED suites: ${failed_suites[*]}" >&2
+      exit 1
     fi
     ;;
   install)
