@@ -174,6 +174,13 @@ Result<Recipe> parse_recipe(std::string_view text, const std::string& file) {
     std::string what = e.what();
     if (const size_t p = what.find(": "); p != std::string::npos) what = what.substr(p + 2);
     return syntax_error(text, e.byte == 0 ? 0 : e.byte - 1, what, file);
+  } catch (const json::out_of_range& e) {
+    // A number too large for a double (1e400) comes as out_of_range, with no position.
+    std::string what = e.what();
+    if (const size_t p = what.find("] "); p != std::string::npos) what = what.substr(p + 2);
+    Error error = usage_error("not valid JSON: " + what);
+    error.file = file;
+    return error;
   }
   Recipe r;
   Section top(doc, "recipe", file);

@@ -296,6 +296,17 @@ TEST_CASE("unit_run: every recipe in the repository survives load -> save -> loa
   }
 }
 
+TEST_CASE("unit_run: a number too large for JSON's double is an error, not an exception") {
+  // Found by tests/fuzz/fuzz_recipe.cpp: nlohmann reports it as out_of_range, not parse_error.
+  for (const char* text : {R"({"tamis_recipe": 1e400, "steps": []})", R"({"tamis_recipe": 1, "steps": [{"op": "trim", "x": -1e999}]})"}) {
+    INFO(text);
+    auto recipe = parse_recipe(text, "big.json");
+    REQUIRE(!recipe.ok());
+    CHECK(recipe.error().kind == ErrorKind::usage);
+    CHECK(recipe.error().message.find("number overflow") != std::string::npos);
+  }
+}
+
 TEST_CASE("unit_run: the JSON Schema lists every registered op with its own definition") {
   const auto schema = nlohmann::json::parse(file_text(std::filesystem::path(TAMIS_SOURCE_DIR) / "assets/recipe.schema.json"));
   std::set<std::string> listed;
