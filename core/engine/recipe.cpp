@@ -187,7 +187,7 @@ Result<Recipe> parse_recipe(std::string_view text, const std::string& file) {
   if (!doc.is_object()) return top.error("", "expected a JSON object");
   const json* version = top.get("tamis_recipe");
   if (!version) return top.error("tamis_recipe", "is required (the format version, 1)");
-  if (!version->is_number_integer() || version->get<int>() != 1)
+  if (!version->is_number_integer() || *version != 1)
     return top.error("tamis_recipe", "this tamis reads recipe version 1, found " + version->dump());
   auto title = top.text("title");
   if (!title) return title.take_error();

@@ -307,6 +307,16 @@ TEST_CASE("unit_run: a number too large for JSON's double is an error, not an ex
   }
 }
 
+TEST_CASE("unit_run: only version 1 is version 1") {
+  // 4294967297 is 2^32 + 1: cut to a 32-bit int it would read as 1.
+  for (const char* version : {"4294967297", "1.0", "\"1\"", "2", "0"}) {
+    INFO(version);
+    auto recipe = parse_recipe(std::string(R"({"tamis_recipe": )") + version + R"(, "steps": []})", "v.json");
+    CHECK(!recipe.ok());
+  }
+  CHECK(parse_recipe(R"({"tamis_recipe": 1, "steps": []})", "v.json").ok());
+}
+
 TEST_CASE("unit_run: the JSON Schema lists every registered op with its own definition") {
   const auto schema = nlohmann::json::parse(file_text(std::filesystem::path(TAMIS_SOURCE_DIR) / "assets/recipe.schema.json"));
   std::set<std::string> listed;
