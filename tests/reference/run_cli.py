@@ -227,6 +227,28 @@ if code == 0:
     tally.check(t["rows_read"] == len(rows) and t["rows_rejected"] == 4
                 and t["rows_read"] == t["rows_written"] + t["rows_removed"] + t["rows_rejected"],
                 "malformed records count as read and rejected; the totals balance", reflib.show_value(t))
+# Rows a step rejects join the malformed records in the rejects file, in line order.
+rejecting = write_recipe("rejecting", [{"op": "parse_number", "column": "count", "scale": 0, "on_error": "reject"}])
+code, _, stderr = run(["run", rejecting, ragged, "-o", path("rejecting.csv"), "--max-rejects", "100%",
+                       "--rejects", path("rejecting_rejects.csv"), "--report", path("rejecting.json"), "--batch-rows", "7"])
+tally.check(code == 0, "a step with on_error reject runs under --max-rejects 100%", stderr)
+if code == 0:
+    not_numbers = [line for record, line in good[1:] if not record[2].isdigit()]
+    rej = reflib.parse_tamis_output(open(path("rejecting_rejects.csv"), "rb").read())[1:]
+    tally.check([int(r[0]) for r in rej] == sorted(bad_lines + not_numbers),
+                "rejects file: malformed records and rows the step rejected, in line order",
+                reflib.show_value([r[0] for r in rej][:12]))
+    by_line = {int(r[0]): r for r in rej}
+    tally.check(all(by_line[l][1].startswith("step 1 (parse_number)") for l in not_numbers)
+                and all(by_line[l][1].startswith("malformed record") for l in bad_lines),
+                "each reason names where the row was rejected", reflib.show_value(rej[:3]))
+    source = {line: record for record, line in ragged_records}
+    tally.check(all(reflib.python_csv_records(by_line[l][2])[0] == source[l] for l in not_numbers),
+                "a row a step rejected is kept as the file had it")
+    t = json.load(open(path("rejecting.json"), encoding="utf-8"))["totals"]
+    tally.check(t["rows_rejected"] == len(bad_lines) + len(not_numbers) and t["rows_written"] == len(good) - 1 - len(not_numbers)
+                and t["balanced"], "totals count both kinds of rejects and balance", reflib.show_value(t))
+
 # 4 of 400 rows = 1%.
 for cap, want in (("1%", 0), ("0.99%", 3), ("2%", 0), ("0.5%", 3)):
     code, _, stderr = run(["run", basic, ragged, "-o", path("pct.csv"), "--max-rejects", cap])
