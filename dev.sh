@@ -5,7 +5,7 @@
 #                    (native, WebAssembly under node, ASan/UBSan + fuzzers)
 #   ./dev.sh build   install what is missing, native build only
 #   ./dev.sh install install everything `test` needs, build nothing
-# `./dev.sh test native|wasm|asan ...` runs only the named test suites.
+# `./dev.sh test native|wasm|asan|fuzz ...` runs only the named test suites.
 # Environment: TAMIS_JOBS (default 2), TAMIS_FUZZ_SECONDS (default 60, shared
 # by all fuzzers), TAMIS_WASM_CACHE (see web/deps/build.sh).
 set -euo pipefail
@@ -240,6 +240,12 @@ suite_wasm() {
 suite_asan() {
   run_phase asan-build asan_build
   run_phase asan-tests asan_tests
+}
+
+# Fuzzing still runs when a unit test failed; it needs the asan build, which
+# the rebuild below confirms is complete.
+suite_fuzz() {
+  run_phase fuzz-build asan_build
   run_phase fuzz run_fuzzers
 }
 
@@ -330,10 +336,10 @@ case $command in
   test)
     selected_suites=("$@")
     for suite in "${selected_suites[@]}"; do
-      [[ $suite == native || $suite == wasm || $suite == asan ]] || { usage >&2; exit 2; }
+      [[ $suite == native || $suite == wasm || $suite == asan || $suite == fuzz ]] || { usage >&2; exit 2; }
     done
     run_phase install install_for_test
-    for suite in native wasm asan; do
+    for suite in native wasm asan fuzz; do
       if want_suite "$suite"; then
         run_suite "$suite"
       fi
