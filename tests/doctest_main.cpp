@@ -3,34 +3,15 @@
 #include <doctest/doctest.h>
 
 #include <cstdio>
-#include <string>
-#include <vector>
 
 namespace {
-
-// CTest runs each test case as `suite --test-case=<full name>`, but doctest
-// splits a filter at commas, so a name containing a comma selected nothing and
-// the test "passed" without running. A test case filter is therefore taken
-// whole: commas (and backslashes) are escaped the way doctest's parser expects.
-std::string whole_test_case_filter(const std::string& argument) {
-  for (const std::string prefix : {"--test-case=", "-tc="}) {
-    if (argument.rfind(prefix, 0) == 0) {
-      std::string escaped = prefix;
-      for (const char character : argument.substr(prefix.size())) {
-        if (character == ',' || character == '\\') escaped += '\\';
-        escaped += character;
-      }
-      return escaped;
-    }
-  }
-  return argument;
-}
 
 bool test_run_finished = false;
 unsigned selected_test_cases = 0;
 
 // Records how many test cases passed the filters, so that a run selecting
-// none fails instead of passing with nothing tested.
+// none (say, a filter that no longer matches a renamed test case) fails
+// instead of passing with nothing tested.
 struct SelectionListener : doctest::IReporter {
   explicit SelectionListener(const doctest::ContextOptions&) {}
   void report_query(const doctest::QueryData&) override {}
@@ -54,13 +35,7 @@ REGISTER_LISTENER("tamis_selection", 1, SelectionListener);
 }  // namespace
 
 int main(int argc, char** argv) {
-  std::vector<std::string> arguments(argv, argv + argc);
-  std::vector<const char*> argument_pointers;
-  for (std::string& argument : arguments) {
-    argument = whole_test_case_filter(argument);
-    argument_pointers.push_back(argument.c_str());
-  }
-  doctest::Context context(argc, argument_pointers.data());
+  doctest::Context context(argc, argv);
   const int result = context.run();
   if (test_run_finished && selected_test_cases == 0) {
     std::fprintf(stderr, "no test case matched the filters: nothing was tested\n");
