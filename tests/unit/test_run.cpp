@@ -332,7 +332,9 @@ TEST_CASE("unit_run: the JSON Schema lists every registered op with its own defi
     for (const std::string& steps : step_samples().at(std::string(kind.op))) {
       const Recipe recipe = recipe_with_steps(steps);
       for (const RecipeStep& step : recipe.steps)
-        for (const auto& [key, value] : step.definition.items()) {
+        // No structured binding here: clang 14 cannot capture one in INFO.
+        for (const auto& item : step.definition.items()) {
+          const std::string key = item.key();
           INFO("key: " << key);
           if (step.op == kind.op) CHECK(properties.contains(key));
         }
