@@ -1,0 +1,140 @@
+#include "steps/row_filter.hpp"
+
+#include <algorithm>
+
+#include "expr/expr.hpp"
+
+namespace tamis {
+
+namespace {
+
+size_t count_kept(const std::vector<uint8_t>& keep, size_t first, size_t rows) {
+  size_t kept = 0;
+  for (size_t i = 0; i < rows; ++i) kept += keep[first + i] != 0;
+  return kept;
+}
+
+std::shared_ptr<const ColumnChunk> select_chunk(const ColumnChunk& chunk, bool is_text, const uint8_t* keep,
+                                                size_t kept) {
+  auto out = std::make_shared<ColumnChunk>();
+  out->rows = kept;
+  if (is_text) {
+    size_t kept_bytes = 0;
+    for (size_t i = 0; i < chunk.rows; ++i)
+      if (keep[i]) kept_bytes += chunk.offsets[i + 1] - chunk.offsets[i];
+    out->bytes.reserve(kept_bytes);
+    out->offsets.reserve(kept + 1);
+    out->offsets.push_back(0);
+    // Runs of kept rows are copied with one append each.
+    for (size_t i = 0; i < chunk.rows;) {
+      if (!keep[i]) {
+        ++i;
+        continue;
+      }
+      size_t j = i;
+      while (j < chunk.rows && keep[j]) ++j;
+      const uint32_t base = static_cast<uint32_t>(out->bytes.size()) - chunk.offsets[i];
+      out->bytes.append(chunk.bytes, chunk.offsets[i], chunk.offsets[j] - chunk.offsets[i]);
+      for (size_t r = i; r < j; ++r) out->offsets.push_back(chunk.offsets[r + 1] + base);
+      i = j;
+    }
+  } else {
+    out->numbers.reserve(kept);
+    for (size_t i = 0; i < chunk.rows; ++i)
+      if (keep[i]) out->numbers.push_back(chunk.numbers[i]);
+  }
+  if (chunk.has_nulls()) {
+    std::vector<uint64_t> validity((kept + 63) / 64, 0);
+    size_t at = 0;
+    bool any_null = false;
+    for (size_t i = 0; i < chunk.rows; ++i) {
+      if (!keep[i]) continue;
+      const bool present = !chunk.is_null(i);
+      any_null |= !present;
+      validity[at >> 6] |= static_cast<uint64_t>(present) << (at & 63);
+      ++at;
+    }
+    if (any_null) out->validity = std::move(validity);
+  }
+  return out;
+}
+
+ColumnPtr select_column(const Column& column, const std::vector<uint8_t>& keep) {
+  auto out = std::make_shared<Column>(column.type(), column.scale());
+  for (size_t k = 0; k < column.chunk_count(); ++k) {
+    const ColumnChunk& chunk = column.chunk(k);
+    const size_t first = column.chunk_start(k);
+    const size_t kept = count_kept(keep, first, chunk.rows);
+    if (kept == chunk.rows) out->append_chunk(column.chunk_ptr(k));
+    else if (kept > 0) out->append_chunk(select_chunk(chunk, column.type() == Type::text, keep.data() + first, kept));
+  }
+  return out;
+}
+
+class RowFilter final : public Step {
+ public:
+  RowFilter(RowFilterKind kind, Expression where) : kind_(kind), where_(std::move(where)) {
+    reason_ = "where " + where_.text() + (kind_ == RowFilterKind::keep ? " was not true" : " was true");
+  }
+
+  std::string_view op() const override { return kind_ == RowFilterKind::keep ? "keep_rows" : "drop_rows"; }
+
+  std::string describe() const override {
+    return kind_ == RowFilterKind::keep ? "Keep only the rows where " + where_.text() + " is true."
+                                        : "Remove the rows where " + where_.text() + " is true.";
+  }
+
+  Result<Table> apply(const Table& batch, StepState*, ChangeRecord& change) const override {
+    std::vector<uint8_t> keep;
+    if (Status s = where_.evaluate_condition(batch, keep); !s) return s.take_error();
+    if (kind_ == RowFilterKind::drop)
+      for (uint8_t& k : keep) k ^= 1;
+    const size_t rows = batch.row_count();
+    change.rows_in += rows;
+    const Column& lines = batch.source_lines();
+    size_t kept = 0;
+    for (size_t k = 0; k < lines.chunk_count(); ++k) {
+      const ColumnChunk& chunk = lines.chunk(k);
+      const size_t first = lines.chunk_start(k);
+      for (size_t i = 0; i < chunk.rows; ++i) {
+        if (keep[first + i]) ++kept;
+        else change.note_removed(static_cast<uint64_t>(chunk.numbers[i]), reason_);
+      }
+    }
+    change.rows_out += kept;
+    if (kept == rows) return batch;
+    return select_rows(batch, keep);
+  }
+
+  SqlSupport sql_support(Dialect dialect) const override { return where_.sql_support(dialect); }
+
+  nlohmann::ordered_json parameters() const override {
+    nlohmann::ordered_json p;
+    p["where"] = where_.text();
+    return p;
+  }
+
+ private:
+  RowFilterKind kind_;
+  Expression where_;
+  std::string reason_;
+};
+
+}  // namespace
+
+Table select_rows(const Table& table, const std::vector<uint8_t>& keep) {
+  std::vector<ColumnPtr> columns;
+  for (size_t c = 0; c < table.column_count(); ++c) columns.push_back(select_column(table.column(c), keep));
+  return Table::make(table.names(), std::move(columns), select_column(table.source_lines(), keep)).value();
+}
+
+Result<std::unique_ptr<Step>> parse_row_filter(StepParams& params, RowFilterKind kind) {
+  auto where = params.text("where");
+  if (!where) return where.take_error();
+  auto expression = Expression::parse(*where, params.input(), Expression::Use::condition);
+  if (!expression) return params.error("where", expression.error().message);
+  if (Status s = params.finish(); !s) return s.take_error();
+  return std::unique_ptr<Step>(new RowFilter(kind, std::move(*expression)));
+}
+
+}  // namespace tamis
