@@ -1,0 +1,105 @@
+#include "steps/collapse_spaces.hpp"
+
+#include "steps/cell_map.hpp"
+#include "steps/text_step_support.hpp"
+#include "utf8.hpp"
+
+namespace tamis {
+
+namespace {
+
+// Moves i past the character at v[i] and says whether it is white space.
+bool next_is_white_space(std::string_view v, size_t& i) {
+  const auto b = static_cast<unsigned char>(v[i]);
+  if (b < 0x80) {
+    ++i;
+    return b == ' ' || (b >= 0x09 && b <= 0x0D);
+  }
+  return utf8::is_white_space(utf8::next(v, i));
+}
+
+// Moves i past the white space that starts at v[i], if any.
+void skip_white_space(std::string_view v, size_t& i) {
+  while (i < v.size()) {
+    size_t next = i;
+    if (!next_is_white_space(v, next)) return;
+    i = next;
+  }
+}
+
+// Writes the collapsed value into out; false when nothing changes.
+bool collapse(std::string_view v, std::string& out) {
+  size_t i = 0;
+  skip_white_space(v, i);  // the leading run is left for trim
+  size_t copied = 0;       // v[0, copied) is settled: in out, or unchanged so far
+  bool changed = false;
+  while (i < v.size()) {
+    const size_t run_start = i;
+    if (!next_is_white_space(v, i)) continue;
+    skip_white_space(v, i);
+    if (i == v.size()) break;  // the trailing run is left for trim
+    if (i - run_start == 1 && v[run_start] == ' ') continue;
+    if (!changed) {
+      out.reserve(v.size());
+      changed = true;
+    }
+    out.append(v.substr(copied, run_start - copied));
+    out += ' ';
+    copied = i;
+  }
+  if (changed) out.append(v.substr(copied));
+  return changed;
+}
+
+class CollapseSpaces final : public Step {
+ public:
+  CollapseSpaces(std::vector<size_t> columns, Schema input) : columns_(std::move(columns)), input_(std::move(input)) {}
+
+  std::string_view op() const override { return "collapse_spaces"; }
+
+  std::string describe() const override {
+    return "Turn each run of white space inside the values of " + join_names(input_, columns_) +
+           " into a single space.";
+  }
+
+  Result<Table> apply(const Table& batch, StepState*, ChangeRecord& change) const override {
+    return map_text_cells(batch, columns_, change, [](std::string_view v, std::string& out) {
+      return collapse(v, out) ? CellResult::replaced : CellResult::unchanged;
+    });
+  }
+
+  // regexp_replace over the inner part (between the leading and trailing
+  // runs) with the White_Space characters written out as a class; SQLite
+  // has no regexp_replace.
+  SqlSupport sql_support(Dialect dialect) const override {
+    switch (dialect) {
+      case Dialect::postgres:
+      case Dialect::duckdb:
+      case Dialect::spark:
+      case Dialect::mysql: return SqlSupport::exact;
+      case Dialect::sqlite: return SqlSupport::unsupported;
+    }
+    return SqlSupport::unsupported;
+  }
+
+  nlohmann::ordered_json parameters() const override {
+    nlohmann::ordered_json p;
+    p["columns"] = column_list(input_, columns_);
+    return p;
+  }
+
+ private:
+  std::vector<size_t> columns_;
+  Schema input_;
+};
+
+}  // namespace
+
+Result<std::unique_ptr<Step>> parse_collapse_spaces(StepParams& params) {
+  auto columns = text_columns(params, "columns");
+  if (!columns) return columns.take_error();
+  if (Status s = params.finish(); !s) return s.take_error();
+  return std::unique_ptr<Step>(new CollapseSpaces(std::move(*columns), params.input()));
+}
+
+}  // namespace tamis
