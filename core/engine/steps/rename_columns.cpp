@@ -1,0 +1,87 @@
+#include "steps/rename_columns.hpp"
+
+#include "steps/typed_column_layout.hpp"
+#include "utf8.hpp"
+
+namespace tamis {
+
+namespace {
+
+class RenameColumns final : public Step {
+ public:
+  // renamed: (input column, new name) in the order the recipe lists them.
+  RenameColumns(std::vector<std::pair<size_t, std::string>> renamed, Schema input)
+      : renamed_(std::move(renamed)), input_(std::move(input)) {
+    for (size_t c = 0; c < input_.size(); ++c) {
+      layout_.sources.push_back(c);
+      layout_.names.push_back(input_[c].name);
+    }
+    for (const auto& [c, name] : renamed_) layout_.names[c] = name;
+  }
+
+  std::string_view op() const override { return "rename_columns"; }
+  std::string describe() const override {
+    std::string out = "Rename ";
+    for (size_t i = 0; i < renamed_.size(); ++i) {
+      if (i) out += i + 1 == renamed_.size() ? " and " : ", ";
+      out += input_[renamed_[i].first].name + " to " + renamed_[i].second;
+    }
+    return out + ".";
+  }
+  Schema output_schema(const Schema& input) const override { return layout_schema(layout_, input); }
+  Result<Table> apply(const Table& batch, StepState*, ChangeRecord& change) const override {
+    return layout_table(layout_, batch, change);
+  }
+  SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
+  nlohmann::ordered_json parameters() const override {
+    nlohmann::ordered_json p;
+    p["map"] = nlohmann::ordered_json::object();
+    for (const auto& [c, name] : renamed_) p["map"][input_[c].name] = name;
+    return p;
+  }
+
+ private:
+  std::vector<std::pair<size_t, std::string>> renamed_;
+  Schema input_;
+  ColumnLayout layout_;
+};
+
+}  // namespace
+
+Result<std::unique_ptr<Step>> parse_rename_columns(StepParams& params) {
+  const nlohmann::json* map = params.raw("map");
+  if (!map) return params.error("map", "is required (an object such as {\"old name\": \"new name\"})");
+  if (!map->is_object() || map->empty())
+    return params.error("map", "expected a non-empty object such as {\"old name\": \"new name\"}, found " + map->dump());
+  const Schema& input = params.input();
+  std::vector<std::pair<size_t, std::string>> renamed;
+  std::vector<std::string> names;
+  for (const ColumnSchema& c : input) names.push_back(c.name);
+  for (const auto& [old_name, new_name] : map->items()) {
+    std::optional<size_t> column;
+    for (size_t c = 0; c < input.size(); ++c)
+      if (input[c].name == old_name) column = c;
+    if (!column) {
+      std::string known;
+      for (const ColumnSchema& c : input) known += (known.empty() ? "" : ", ") + c.name;
+      return params.error("map", "no column named '" + old_name + "' (the columns here are: " + known + ")");
+    }
+    if (!new_name.is_string())
+      return params.error("map", "the new name of '" + old_name + "' must be text, found " + new_name.dump());
+    const std::string name = new_name.get<std::string>();
+    if (name.empty()) return params.error("map", "the new name of '" + old_name + "' is empty");
+    if (utf8::first_invalid(name) != std::string_view::npos)
+      return params.error("map", "the new name of '" + old_name + "' is not valid UTF-8");
+    names[*column] = name;
+    renamed.emplace_back(*column, name);
+  }
+  for (size_t a = 0; a < names.size(); ++a)
+    for (size_t b = a + 1; b < names.size(); ++b)
+      if (names[a] == names[b])
+        return params.error("map", "would give two columns the name '" + names[a] + "' ('" + input[a].name +
+                                       "' and '" + input[b].name + "')");
+  if (Status s = params.finish(); !s) return s.take_error();
+  return std::unique_ptr<Step>(new RenameColumns(std::move(renamed), input));
+}
+
+}  // namespace tamis
