@@ -321,6 +321,9 @@ TEST_CASE("unit_run: the JSON Schema lists every registered op with its own defi
   const auto schema = nlohmann::json::parse(file_text(std::filesystem::path(TAMIS_SOURCE_DIR) / "assets/recipe.schema.json"));
   std::set<std::string> listed;
   for (const auto& op : schema["$defs"]["step"]["properties"]["op"]["enum"]) listed.insert(op.get<std::string>());
+  std::set<std::string> registered;
+  for (const StepKind& kind : step_kinds()) registered.insert(std::string(kind.op));
+  CHECK(listed == registered);
   for (const StepKind& kind : step_kinds()) {
     INFO("op: " << kind.op);
     CHECK(listed.count(std::string(kind.op)) == 1);
