@@ -30,9 +30,12 @@ build_packages=(
 # Additionally needed by `test`: the WebAssembly toolchain and ICU tools for
 # web/deps, clang for the sanitizer/fuzz build, Python and node for the
 # reference tests, dpkg-dev for `apt-get source`.
+# locales holds glibc's CP1252 charmap (encodings reference), bzip2 unpacks
+# unicode-data's NormalizationTest.txt, python3-jsonschema checks recipes
+# against the schema, time measures peak memory in the benchmarks.
 test_packages=(
   icu-devtools emscripten clang-14 libclang-rt-14-dev
-  python3 python3-numpy python3-pandas unicode-data dpkg-dev
+  python3 python3-numpy python3-pandas python3-jsonschema unicode-data bzip2 locales time dpkg-dev
 )
 
 started_at=$EPOCHREALTIME
@@ -302,13 +305,15 @@ run_fuzzers() {
   done
 }
 
+# The main job: the demo recipe cleans the demo file; the input stays as it
+# is, the cleaned file, the JSON report and the rejects go to build/demo/.
 run_demo() {
-  local demo_file=assets/demo/tree_survey.csv
-  if [[ ! -f $demo_file ]]; then
-    echo "demo data $demo_file not there yet: skipping the demo run"
-    return
-  fi
-  build/native/cli/tamis profile "$demo_file"
+  local demo=assets/demo out=build/demo
+  mkdir -p "$out"
+  build/native/cli/tamis run "$demo/tree_survey.recipe.json" "$demo/tree_survey.csv" \
+    -o "$out/tree_survey.clean.csv" --report "$out/report.json" --rejects "$out/rejects.csv" \
+    --metadata "$out/tree_survey.clean.csv-metadata.json"
+  echo "cleaned file: $out/tree_survey.clean.csv; report: $out/report.json"
 }
 
 want_suite() {

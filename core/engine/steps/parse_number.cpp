@@ -113,6 +113,7 @@ class ParseNumber final : public Step {
     if (form_.percent) how += ", a % sign dividing by 100";
     const std::string kind = !scale_      ? "numbers"
                              : *scale_ == 0 ? "whole numbers"
+                             : *scale_ == 1 ? "numbers with 1 decimal"
                                             : "numbers with " + std::to_string(*scale_) + " decimals";
     switch (on_error_) {
       case OnError::null:
