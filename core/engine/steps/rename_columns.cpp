@@ -1,23 +1,27 @@
 #include "steps/rename_columns.hpp"
 
-#include "steps/typed_column_layout.hpp"
+#include "steps/column_layout.hpp"
 #include "utf8.hpp"
 
 namespace tamis {
 
 namespace {
 
-class RenameColumns final : public Step {
+ColumnLayout layout_renamed(const Schema& input, const std::vector<std::pair<size_t, std::string>>& renamed) {
+  ColumnLayout layout;
+  for (size_t c = 0; c < input.size(); ++c) {
+    layout.sources.push_back(c);
+    layout.names.push_back(input[c].name);
+  }
+  for (const auto& [c, name] : renamed) layout.names[c] = name;
+  return layout;
+}
+
+class RenameColumns final : public ColumnLayoutStep {
  public:
   // renamed: (input column, new name) in the order the recipe lists them.
   RenameColumns(std::vector<std::pair<size_t, std::string>> renamed, Schema input)
-      : renamed_(std::move(renamed)), input_(std::move(input)) {
-    for (size_t c = 0; c < input_.size(); ++c) {
-      layout_.sources.push_back(c);
-      layout_.names.push_back(input_[c].name);
-    }
-    for (const auto& [c, name] : renamed_) layout_.names[c] = name;
-  }
+      : ColumnLayoutStep(input, layout_renamed(input, renamed)), renamed_(std::move(renamed)) {}
 
   std::string_view op() const override { return "rename_columns"; }
   std::string describe() const override {
@@ -28,11 +32,6 @@ class RenameColumns final : public Step {
     }
     return out + ".";
   }
-  Schema output_schema(const Schema& input) const override { return layout_schema(layout_, input); }
-  Result<Table> apply(const Table& batch, StepState*, ChangeRecord& change) const override {
-    return layout_table(layout_, batch, change);
-  }
-  SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;
     p["map"] = nlohmann::ordered_json::object();
@@ -42,8 +41,6 @@ class RenameColumns final : public Step {
 
  private:
   std::vector<std::pair<size_t, std::string>> renamed_;
-  Schema input_;
-  ColumnLayout layout_;
 };
 
 }  // namespace
