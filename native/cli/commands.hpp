@@ -72,6 +72,18 @@ struct ExplainArgs {
 CLI::App* add_explain_command(CLI::App& app, ExplainArgs& args);
 int run_explain(const ExplainArgs& args);
 
+struct SqlArgs {
+  std::string recipe;
+  std::string dialect;
+  std::string source = "tamis_raw";
+  std::string target = "tamis_clean";
+  std::string output = "-";
+  std::string load_csv;
+  bool allow_approximate = false;
+};
+CLI::App* add_sql_command(CLI::App& app, SqlArgs& args);
+int run_sql(const SqlArgs& args);
+
 // Prints "tamis: <error>" on stderr and returns the error's exit code.
 int report_error(const Error& error);
 

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <unordered_map>
 
+#include "sql/sql_step.hpp"
 #include "steps/row_fill.hpp"
 #include "steps/row_key.hpp"
 
@@ -56,6 +57,20 @@ class CarryForward final : public Step {
   // COUNT(column) OVER (PARTITION BY groups ORDER BY line) numbers the runs
   // that start at each non-NULL value; FIRST_VALUE over each run fills it.
   SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    std::string groups;
+    for (const size_t c : group_by_) groups += sql.key(c) + ", ";
+    const std::string x = sql.column(column_);
+    const std::string partition = group_by_.empty() ? std::string() : std::string("PARTITION BY ") + groups.substr(0, groups.size() - 2) + " ";
+    SqlStepText out;
+    out.select = sql.select_replacing(
+        {{column_, std::string("COALESCE(") + x + std::string(", MAX(") + x + std::string(") OVER (PARTITION BY ") + groups + "tamis_run))"}},
+        std::string("(SELECT *,\n             COUNT(") + x + std::string(") OVER (") + partition + std::string("ORDER BY ") + sql.line() +
+            "\n                               ROWS BETWEEN UNBOUNDED PRECEDING AND CURRENT ROW) AS tamis_run\n      FROM " +
+            sql.from + ") AS runs");
+    return out;
+  }
 
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;

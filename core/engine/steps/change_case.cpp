@@ -5,6 +5,7 @@
 
 #include <cstring>
 
+#include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "steps/text_step_support.hpp"
 
@@ -93,6 +94,18 @@ class ChangeCase final : public Step {
     if (to_ != Target::title) return SqlSupport::approximate;
     return dialect == Dialect::postgres || dialect == Dialect::spark ? SqlSupport::approximate
                                                                     : SqlSupport::unsupported;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    const char* function = to_ == Target::lower ? "LOWER" : to_ == Target::upper ? "UPPER" : "initcap";
+    std::vector<std::pair<size_t, std::string>> replaced;
+    for (const size_t c : columns_) replaced.emplace_back(c, std::string(function) + std::string("(") + sql.column(c) + ")");
+    SqlStepText out;
+    out.select = sql.select_replacing(replaced);
+    out.approximation = to_ == Target::title
+                            ? "initcap has its own word rules and maps case letter by letter"
+                            : "the engine's case tables replace ICU's full case mapping (e.g. for ß, final sigma)";
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

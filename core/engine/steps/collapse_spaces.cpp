@@ -1,5 +1,6 @@
 #include "steps/collapse_spaces.hpp"
 
+#include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "steps/text_step_support.hpp"
 #include "utf8.hpp"
@@ -80,6 +81,25 @@ class CollapseSpaces final : public Step {
       case Dialect::sqlite: return SqlSupport::unsupported;
     }
     return SqlSupport::unsupported;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    const Dialect d = sql.dialect;
+    const std::string space = sql::regex_class(d, sql::white_space_characters());
+    std::vector<std::pair<size_t, std::string>> replaced;
+    for (const size_t c : columns_) {
+      const std::string x = sql.column(c);
+      const std::string inner = sql::regex_replace_all(d, x, std::string("^") + space + std::string("+|") + space + "+$", "");
+      replaced.emplace_back(
+          c, std::string("CASE WHEN ") + inner + std::string(" = '' THEN ") + x + "\n            ELSE " +
+                 sql::concat(d, {sql::regex_first_match(d, x, std::string("^") + space + "+"),
+                                 sql::regex_replace_all(d, inner, space + "+", " "),
+                                 sql::regex_first_match(d, x, space + "+$")}) +
+                 " END");
+    }
+    SqlStepText out;
+    out.select = sql.select_replacing(replaced);
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

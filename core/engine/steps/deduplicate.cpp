@@ -1,5 +1,6 @@
 #include "steps/deduplicate.hpp"
 
+#include "sql/sql_step.hpp"
 #include "steps/row_filter.hpp"
 #include "steps/typed_support.hpp"
 
@@ -101,6 +102,25 @@ class Deduplicate final : public Step {
     // trimming the White_Space set is TRIM with those characters (a regular
     // expression in MySQL). SQL's LOWER is case mapping, not case folding.
     return compare_ == KeyCompare::casefold ? SqlSupport::approximate : SqlSupport::exact;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    const Dialect d = sql.dialect;
+    std::string keys;
+    for (const size_t c : columns_) {
+      std::string key = sql.key(c);
+      if (input_[c].type == Type::text && compare_ == KeyCompare::trimmed)
+        key = sql::exact_key(d, sql::trim_characters(d, sql.column(c), sql::white_space_characters(), "both"), Type::text);
+      if (input_[c].type == Type::text && compare_ == KeyCompare::casefold)
+        key = sql::exact_key(d, std::string("LOWER(") + sql.column(c) + ")", Type::text);
+      keys += (keys.empty() ? "" : ", ") + key;
+    }
+    SqlStepText out;
+    out.select = std::string("SELECT ") + sql.column_list() + std::string("\nFROM (SELECT *,\n             ROW_NUMBER() OVER (PARTITION BY ") + keys +
+                 std::string("\n                                ORDER BY ") + sql.line() + (keep_last_ ? " DESC" : "") +
+                 std::string(") AS tamis_copy\n      FROM ") + sql.from + ") AS numbered\nWHERE tamis_copy = 1";
+    if (compare_ == KeyCompare::casefold) out.approximation = "LOWER stands in for Unicode case folding";
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 
+#include "sql/sql_step.hpp"
 #include "steps/column_layout.hpp"
 
 namespace tamis {
@@ -27,6 +28,14 @@ class DropColumns final : public ColumnLayoutStep {
   std::string describe() const override {
     return std::string(dropped_.size() == 1 ? "Remove the column " : "Remove the columns ") +
            join_names(input_, dropped_) + ".";
+  }
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    SqlStepText out;
+    out.select = "SELECT ";
+    for (size_t c = 0; c < input_.size(); ++c)
+      if (std::find(dropped_.begin(), dropped_.end(), c) == dropped_.end()) out.select += sql.column(c) + ", ";
+    out.select += sql.line() + std::string("\nFROM ") + sql.from;
+    return out;
   }
   nlohmann::ordered_json parameters() const override { return column_list_parameters(dropped_); }
 

@@ -4,6 +4,7 @@
 #include <unordered_map>
 
 #include "recipe.hpp"
+#include "sql/sql_step.hpp"
 #include "steps/row_fill.hpp"
 #include "steps/row_key.hpp"
 
@@ -119,6 +120,20 @@ class FillFromGroup final : public Step {
     // A GROUP BY of the keys with COUNT(DISTINCT) = 1, joined back with
     // IS NOT DISTINCT FROM (<=> in MySQL and Spark, IS in SQLite).
     return SqlSupport::exact;
+  }
+
+  // The window's MIN and MAX (compared byte for byte) agree exactly when the
+  // group holds one distinct non-NULL value.
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    std::string partition;
+    for (const size_t c : keys_) partition += (partition.empty() ? "" : ", ") + sql.key(c);
+    const std::string over = std::string(" OVER (PARTITION BY ") + partition + ")";
+    const std::string x = sql.column(column_), k = sql.key(column_);
+    SqlStepText out;
+    out.select = sql.select_replacing(
+        {{column_, std::string("CASE WHEN ") + x + std::string(" IS NULL\n                 AND MIN(") + k + std::string(")") + over + std::string(" = MAX(") + k + std::string(")") + over +
+                       std::string("\n            THEN MAX(") + x + std::string(")") + over + std::string("\n            ELSE ") + x + " END"}});
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

@@ -2,6 +2,7 @@
 
 #include <map>
 
+#include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "steps/text_step_support.hpp"
 #include "utf8.hpp"
@@ -43,6 +44,23 @@ class MapValues final : public Step {
   // has no full case folding, and LOWER() on both sides only approximates it.
   SqlSupport sql_support(Dialect) const override {
     return ignore_case_ ? SqlSupport::approximate : SqlSupport::exact;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    const Dialect d = sql.dialect;
+    const std::string x = sql.column(column_);
+    std::string cases = "CASE";
+    for (const auto& [from, to] : entries_) {
+      const std::string test = ignore_case_ ? sql::exact_key(d, std::string("LOWER(") + x + ")", Type::text) + " = " +
+                                                  sql::exact_key(d, std::string("LOWER(") + sql.text(from) + ")", Type::text)
+                                            : sql.key(column_) + std::string(" = ") + sql::exact_key(d, sql.text(from), Type::text);
+      cases += std::string("\n         WHEN ") + test + std::string(" THEN ") + sql.text(to);
+    }
+    cases += std::string("\n         ELSE ") + x + " END";
+    SqlStepText out;
+    out.select = sql.select_replacing({{column_, cases}});
+    if (ignore_case_) out.approximation = "LOWER on both sides stands in for Unicode case folding";
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

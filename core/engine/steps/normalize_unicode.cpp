@@ -4,6 +4,7 @@
 #include <unicode/normalizer2.h>
 #include <unicode/uchar.h>
 
+#include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "steps/text_step_support.hpp"
 #include "utf8.hpp"
@@ -76,13 +77,24 @@ class NormalizeUnicode final : public Step {
     switch (dialect) {
       case Dialect::postgres: return strip_accents_ ? SqlSupport::unsupported : SqlSupport::exact;
       case Dialect::duckdb:
-        if (compatibility_) return SqlSupport::unsupported;
-        return strip_accents_ ? SqlSupport::approximate : SqlSupport::exact;
+        return compatibility_ || strip_accents_ ? SqlSupport::unsupported : SqlSupport::exact;
       case Dialect::mysql:
       case Dialect::sqlite:
       case Dialect::spark: return SqlSupport::unsupported;
     }
     return SqlSupport::unsupported;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    if (strip_accents_) return usage_error("strip_accents is not exported");
+    std::vector<std::pair<size_t, std::string>> replaced;
+    for (const size_t c : columns_)
+      replaced.emplace_back(c, sql.dialect == Dialect::postgres
+                                   ? std::string("normalize(") + sql.column(c) + std::string(", ") + form() + ")"
+                                   : std::string("nfc_normalize(") + sql.column(c) + ")");
+    SqlStepText out;
+    out.select = sql.select_replacing(replaced);
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

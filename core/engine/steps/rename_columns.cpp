@@ -1,5 +1,6 @@
 #include "steps/rename_columns.hpp"
 
+#include "sql/sql_step.hpp"
 #include "steps/column_layout.hpp"
 #include "utf8.hpp"
 
@@ -31,6 +32,18 @@ class RenameColumns final : public ColumnLayoutStep {
       out += input_[renamed_[i].first].name + " to " + renamed_[i].second;
     }
     return out + ".";
+  }
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    SqlStepText out;
+    out.select = "SELECT ";
+    for (size_t c = 0; c < input_.size(); ++c) {
+      out.select += sql.column(c);
+      for (const auto& [renamed, name] : renamed_)
+        if (renamed == c) out.select += std::string(" AS ") + sql.name(name);
+      out.select += ", ";
+    }
+    out.select += sql.line() + std::string("\nFROM ") + sql.from;
+    return out;
   }
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;

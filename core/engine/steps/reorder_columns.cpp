@@ -2,6 +2,7 @@
 
 #include <algorithm>
 
+#include "sql/sql_step.hpp"
 #include "steps/column_layout.hpp"
 
 namespace tamis {
@@ -27,6 +28,15 @@ class ReorderColumns final : public ColumnLayoutStep {
     if (first_.size() == input_.size()) return "Put the columns in the order " + join_names(input_, first_) + ".";
     if (first_.size() == 1) return "Put the column " + input_[first_[0]].name + " first and the others after it.";
     return "Put the columns " + join_names(input_, first_) + " first, in that order, and the others after them.";
+  }
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    SqlStepText out;
+    out.select = "SELECT ";
+    for (const size_t c : first_) out.select += sql.column(c) + ", ";
+    for (size_t c = 0; c < input_.size(); ++c)
+      if (std::find(first_.begin(), first_.end(), c) == first_.end()) out.select += sql.column(c) + ", ";
+    out.select += sql.line() + std::string("\nFROM ") + sql.from;
+    return out;
   }
   nlohmann::ordered_json parameters() const override { return column_list_parameters(first_); }
 

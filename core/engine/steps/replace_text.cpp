@@ -4,6 +4,7 @@
 #include <unicode/uchar.h>
 #include <unicode/utext.h>
 
+#include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "steps/text_step_support.hpp"
 #include "utf8.hpp"
@@ -154,8 +155,26 @@ class ReplaceText final : public Step {
   SqlSupport sql_support(Dialect dialect) const override {
     if (match_ != Match::regex) return SqlSupport::exact;  // REPLACE(x, find, replace) / CASE WHEN x = find
     // Each engine has its own regex dialect (POSIX ARE, RE2, Java, ICU or
-    // PCRE2 for MySQL/MariaDB) and SQLite has no regexp_replace.
-    return dialect == Dialect::sqlite ? SqlSupport::unsupported : SqlSupport::approximate;
+    // PCRE2 for MySQL/MariaDB) and SQLite has no regexp_replace; a pattern
+    // is not translated between them.
+    (void)dialect;
+    return SqlSupport::unsupported;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    if (match_ == Match::regex) return usage_error("regular expressions are not exported");
+    std::vector<std::pair<size_t, std::string>> replaced;
+    for (const size_t c : columns_) {
+      const std::string x = sql.column(c);
+      if (match_ == Match::literal)
+        replaced.emplace_back(c, std::string("REPLACE(") + x + std::string(", ") + sql.text(find_) + std::string(", ") + sql.text(replace_) + ")");
+      else
+        replaced.emplace_back(c, std::string("CASE WHEN ") + sql.key(c) + std::string(" = ") + sql::exact_key(sql.dialect, sql.text(find_), Type::text) +
+                                     std::string(" THEN ") + sql.text(replace_) + std::string(" ELSE ") + x + " END");
+    }
+    SqlStepText out;
+    out.select = sql.select_replacing(replaced);
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

@@ -7,6 +7,7 @@
 #include <set>
 
 #include "dates.hpp"
+#include "sql/sql_step.hpp"
 #include "expr/numeric.hpp"
 #include "steps/row_filter.hpp"
 #include "steps/row_key.hpp"
@@ -207,10 +208,80 @@ class Require final : public Step {
   SqlSupport sql_support(Dialect dialect) const override {
     // No SQL script writes a rejects file or a warning into a report; each
     // engine has its own regular expression flavour, and SQLite none.
-    if (on_fail_ == OnFail::reject) return SqlSupport::unsupported;
-    if (rule_ == Rule::pattern) return dialect == Dialect::sqlite ? SqlSupport::unsupported : SqlSupport::approximate;
+    // A stopping rule is a CHECK constraint that the count of failing rows
+    // must pass (raise_error in Spark); pattern and range are not written.
+    (void)dialect;
+    if (on_fail_ == OnFail::reject || rule_ == Rule::pattern || rule_ == Rule::range) return SqlSupport::unsupported;
+    if (rule_ == Rule::in_set)
+      for (const size_t c : columns_)
+        if (input_[c].type != Type::text) return SqlSupport::unsupported;
     if (on_fail_ == OnFail::warn) return SqlSupport::approximate;
     return SqlSupport::exact;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    SqlStepText out;
+    if (on_fail_ == OnFail::warn) {
+      out.approximation = "the script checks nothing: a warning has no place to go";
+      return out;
+    }
+    std::string failing;  // a query giving the number of failing rows (or 1 for row_count)
+    auto any_of = [&](auto&& test) {
+      std::string where;
+      for (const size_t c : columns_) where += (where.empty() ? "" : " OR ") + test(c);
+      return where;
+    };
+    switch (rule_) {
+      case Rule::not_null:
+        failing = std::string("SELECT COUNT(*) FROM ") + sql.from + " WHERE " +
+                  any_of([&](size_t c) { return sql.column(c) + " IS NULL"; });
+        break;
+      case Rule::in_set: {
+        std::string listed;
+        for (const std::string& v : p_.values_written)
+          listed += (listed.empty() ? "" : ", ") + sql::exact_key(sql.dialect, sql.text(v), Type::text);
+        failing = std::string("SELECT COUNT(*) FROM ") + sql.from + std::string(" WHERE ") + any_of([&](size_t c) {
+                    std::string test = "(";
+                    test += sql.column(c) + std::string(" IS NOT NULL AND ") + sql.key(c) + std::string(" NOT IN (") + listed + "))";
+                    return test;
+                  });
+        break;
+      }
+      case Rule::unique: {
+        std::string keys, present;
+        for (const size_t c : columns_) {
+          keys += (keys.empty() ? "" : ", ") + sql.key(c);
+          present += (present.empty() ? "" : " AND ") + sql.column(c) + " IS NOT NULL";
+        }
+        failing = std::string("SELECT COUNT(*) FROM (SELECT COUNT(*) AS copies FROM ") + sql.from + std::string(" WHERE ") + present +
+                  std::string(" GROUP BY ") + keys + " HAVING COUNT(*) > 1) AS repeated";
+        break;
+      }
+      case Rule::row_count: {
+        std::string within;
+        if (p_.min_rows) within += std::string("COUNT(*) >= ") + std::to_string(*p_.min_rows);
+        if (p_.max_rows) within += (within.empty() ? "" : " AND ") + std::string("COUNT(*) <= ") + std::to_string(*p_.max_rows);
+        failing = std::string("SELECT CASE WHEN ") + within + std::string(" THEN 0 ELSE 1 END FROM ") + sql.from;
+        break;
+      }
+      case Rule::pattern:
+      case Rule::range: return usage_error("this rule is not exported");
+    }
+    const std::string guard_name = sql.table_prefix + std::string("_step_") + std::to_string(sql.step_number) + "_require";
+    const std::string message = std::string("step ") + std::to_string(sql.step_number) + " (require " +
+                                std::string(kRuleNames[static_cast<size_t>(rule_)]) + ") failed";
+    if (sql.dialect == Dialect::spark) {
+      out.statements.push_back(std::string("SELECT CASE WHEN (") + failing + std::string(") > 0 THEN raise_error(") + sql.text(message) +
+                               ") END AS tamis_require");
+      return out;
+    }
+    const std::string guard = sql.name(guard_name);
+    out.statements.push_back(std::string("DROP TABLE IF EXISTS ") + guard);
+    out.statements.push_back(std::string("CREATE TABLE ") + guard + " (\n  failing_rows BIGINT,\n  CONSTRAINT " +
+                             sql.name(guard_name + "_passes") + " CHECK (failing_rows = 0)\n)");
+    out.statements.push_back(std::string("INSERT INTO ") + guard + std::string(" (failing_rows)\n") + failing);
+    out.statements.push_back(std::string("DROP TABLE ") + guard);
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

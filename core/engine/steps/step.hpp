@@ -39,6 +39,9 @@ struct StepState {
   virtual ~StepState() = default;
 };
 
+struct SqlContext;
+struct SqlStepText;
+
 class Step {
  public:
   virtual ~Step() = default;
@@ -60,6 +63,9 @@ class Step {
   virtual Status finish(StepState* /*state*/, ChangeRecord& /*change*/) const { return Ok{}; }
 
   virtual SqlSupport sql_support(Dialect dialect) const = 0;
+  // The step as SQL (core/engine/sql/sql_step.hpp), for the dialects where
+  // sql_support() is not unsupported; the default refuses.
+  virtual Result<SqlStepText> to_sql(const SqlContext& context) const;
 
   // The step's parameters as written in a recipe (without op, note, enabled).
   virtual nlohmann::ordered_json parameters() const = 0;

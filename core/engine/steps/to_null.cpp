@@ -2,6 +2,7 @@
 
 #include <set>
 
+#include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "steps/text_step_support.hpp"
 #include "utf8.hpp"
@@ -39,10 +40,31 @@ class ToNull final : public Step {
     });
   }
 
-  // CASE WHEN x IN (...) THEN NULL; for blank, TRIM with the White_Space
-  // characters listed, which MySQL's TRIM (one string, not a set) cannot do.
-  SqlSupport sql_support(Dialect dialect) const override {
-    return blank_ && dialect == Dialect::mysql ? SqlSupport::approximate : SqlSupport::exact;
+  // CASE WHEN x IN (...) THEN NULL, compared byte for byte; blank is TRIM
+  // with the White_Space characters listed (a regular expression in MySQL,
+  // whose TRIM removes one string, not a set) leaving ''.
+  SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    std::vector<std::pair<size_t, std::string>> replaced;
+    for (const size_t c : columns_) {
+      std::vector<std::string> tests;
+      if (!values_.empty()) {
+        std::string listed;
+        for (const std::string& v : values_)
+          listed += (listed.empty() ? "" : ", ") + sql::exact_key(sql.dialect, sql.text(v), Type::text);
+        tests.push_back(sql.key(c) + std::string(" IN (") + listed + ")");
+      }
+      if (blank_)
+        tests.push_back(sql::trim_characters(sql.dialect, sql.column(c), sql::white_space_characters(), "both") +
+                        " = ''");
+      std::string when;
+      for (const std::string& t : tests) when += (when.empty() ? "" : " OR ") + t;
+      replaced.emplace_back(c, std::string("CASE WHEN ") + when + std::string(" THEN NULL ELSE ") + sql.column(c) + " END");
+    }
+    SqlStepText out;
+    out.select = sql.select_replacing(replaced);
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {

@@ -1,5 +1,6 @@
 #include "steps/trim.hpp"
 
+#include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "utf8.hpp"
 
@@ -42,7 +43,19 @@ class Trim final : public Step {
     });
   }
 
+  // TRIM with the characters listed (the White_Space set when none are
+  // given, since SQL's default is the space alone); MySQL, whose TRIM removes
+  // a whole string, gets a regular expression.
   SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    const std::u32string& set = chars_ ? *chars_ : sql::white_space_characters();
+    std::vector<std::pair<size_t, std::string>> replaced;
+    for (const size_t c : columns_) replaced.emplace_back(c, sql::trim_characters(sql.dialect, sql.column(c), set, side_));
+    SqlStepText out;
+    out.select = sql.select_replacing(replaced);
+    return out;
+  }
 
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;

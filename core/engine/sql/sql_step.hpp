@@ -1,0 +1,51 @@
+// What a step needs to write its SQL (Step::to_sql) and what it gives back.
+// The exporter (sql_export.hpp) chains the steps: each one reads the table
+// the previous step made and becomes one CREATE TABLE ... AS SELECT.
+#pragma once
+
+#include <string>
+#include <string_view>
+#include <utility>
+#include <vector>
+
+#include "sql/sql_text.hpp"
+#include "steps/step.hpp"
+
+namespace tamis {
+
+// The hidden column that carries each row's position in the source file, for
+// ordering (deduplicate's first/last, carry_forward) and for the final order.
+inline constexpr std::string_view kSqlLineColumn = "tamis_line";
+
+struct SqlStepText {
+  // Statements run before the step's table is made (a require step's check).
+  std::vector<std::string> statements;
+  // The SELECT that makes the step's table; empty when the table is unchanged.
+  std::string select;
+  // For an approximate export: what can differ from `tamis run`.
+  std::string approximation;
+};
+
+struct SqlContext {
+  Dialect dialect = Dialect::postgres;
+  Schema input;             // the columns the step sees
+  std::string from;         // the previous table, quoted
+  int step_number = 0;      // 1-based position in the recipe
+  std::string table_prefix; // for tables a step makes besides its own (unquoted)
+
+  std::string name(std::string_view identifier) const { return sql::identifier(dialect, identifier); }
+  std::string column(size_t c) const { return name(input[c].name); }
+  std::string line() const { return name(kSqlLineColumn); }
+  std::string text(std::string_view value) const { return sql::literal(dialect, value); }
+  std::string key(size_t c) const { return sql::exact_key(dialect, column(c), input[c].type); }
+
+  // "SELECT a, <expr> AS b, ..., tamis_line FROM <from>": every column in
+  // order, the replaced ones computed.
+  std::string select_replacing(const std::vector<std::pair<size_t, std::string>>& replaced,
+                               std::string_view from_clause = {}) const;
+  // The columns (and the line column) as a select list, each prefixed with
+  // `qualifier.` when one is given.
+  std::string column_list(std::string_view qualifier = {}) const;
+};
+
+}  // namespace tamis
