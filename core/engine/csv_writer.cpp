@@ -2,27 +2,13 @@
 
 #include <cstdlib>
 
+#include "scalars.hpp"
+
 namespace tamis {
 
 namespace {
 constexpr size_t kFlushBytes = 1 << 20;
 
-void append_decimal(int64_t scaled, int scale, std::string& out) {
-  // Plain notation at the column's scale: -12.50 for -1250 at scale 2.
-  const bool negative = scaled < 0;
-  const uint64_t magnitude = negative ? 0 - static_cast<uint64_t>(scaled) : static_cast<uint64_t>(scaled);
-  std::string digits = std::to_string(magnitude);
-  if (scale > 0 && digits.size() <= static_cast<size_t>(scale))
-    digits.insert(0, static_cast<size_t>(scale) + 1 - digits.size(), '0');
-  if (negative) out += '-';
-  if (scale <= 0) {
-    out += digits;
-    return;
-  }
-  out.append(digits, 0, digits.size() - static_cast<size_t>(scale));
-  out += '.';
-  out.append(digits, digits.size() - static_cast<size_t>(scale));
-}
 }  // namespace
 
 void append_canonical(const Column& column, const ColumnChunk& chunk, size_t row,
@@ -30,7 +16,7 @@ void append_canonical(const Column& column, const ColumnChunk& chunk, size_t row
   switch (column.type()) {
     case Type::text: out += chunk.text(row); return;
     case Type::integer: out += std::to_string(chunk.numbers[row]); return;
-    case Type::decimal: append_decimal(chunk.numbers[row], column.scale(), out); return;
+    case Type::decimal: append_scaled_decimal(chunk.numbers[row], column.scale(), out); return;
     case Type::date: date_format.format(static_cast<int32_t>(chunk.numbers[row]), out); return;
     case Type::boolean: out += chunk.numbers[row] ? "true" : "false"; return;
   }

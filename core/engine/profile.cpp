@@ -83,21 +83,6 @@ class ValueCounter {
   size_t used_ = 0;
 };
 
-std::string_view trim_white_space(std::string_view v) {
-  size_t begin = 0, end = v.size();
-  while (begin < end) {
-    size_t i = begin;
-    if (!utf8::is_white_space(utf8::next(v, i))) break;
-    begin = i;
-  }
-  while (end > begin) {
-    size_t i = end;
-    if (!utf8::is_white_space(utf8::previous(v, i))) break;
-    end = i;
-  }
-  return v.substr(begin, end - begin);
-}
-
 int fraction_digits(std::string_view number) {
   const size_t dot = number.find('.');
   if (dot == std::string_view::npos) return 0;
@@ -292,7 +277,7 @@ bool TableProfiler::step(size_t budget) {
         if (utf8::is_punctuation(utf8::previous(v, last))) out.trailing_punctuation += n;
       }
       st.shapes[value_shape(v)] += n;
-      const std::string_view t = trim_white_space(v);
+      const std::string_view t = utf8::trim_white_space(v);
       if (t.empty()) {
         out.blanks += n;
       } else {

@@ -2,20 +2,13 @@
 
 #include <fast_float/fast_float.h>
 
+#include "utf8.hpp"
+
 namespace tamis {
 
 namespace {
 bool is_digit(char c) { return c >= '0' && c <= '9'; }
 
-bool equals_ignoring_ascii_case(std::string_view a, std::string_view lower) {
-  if (a.size() != lower.size()) return false;
-  for (size_t i = 0; i < a.size(); ++i) {
-    char c = a[i];
-    if (c >= 'A' && c <= 'Z') c = static_cast<char>(c - 'A' + 'a');
-    if (c != lower[i]) return false;
-  }
-  return true;
-}
 }  // namespace
 
 NumberShape number_shape(std::string_view s) {
@@ -54,9 +47,31 @@ std::optional<double> parse_double(std::string_view s) {
 }
 
 std::optional<bool> parse_boolean(std::string_view s) {
-  if (equals_ignoring_ascii_case(s, "true") || equals_ignoring_ascii_case(s, "yes")) return true;
-  if (equals_ignoring_ascii_case(s, "false") || equals_ignoring_ascii_case(s, "no")) return false;
+  if (utf8::equals_ascii_ignoring_case(s, "true") || utf8::equals_ascii_ignoring_case(s, "yes")) return true;
+  if (utf8::equals_ascii_ignoring_case(s, "false") || utf8::equals_ascii_ignoring_case(s, "no")) return false;
   return std::nullopt;
+}
+
+void append_scaled_decimal(int64_t scaled, int scale, std::string& out) {
+  const bool negative = scaled < 0;
+  const uint64_t magnitude = negative ? 0 - static_cast<uint64_t>(scaled) : static_cast<uint64_t>(scaled);
+  std::string digits = std::to_string(magnitude);
+  if (scale > 0 && digits.size() <= static_cast<size_t>(scale))
+    digits.insert(0, static_cast<size_t>(scale) + 1 - digits.size(), '0');
+  if (negative) out += '-';
+  if (scale <= 0) {
+    out += digits;
+    return;
+  }
+  out.append(digits, 0, digits.size() - static_cast<size_t>(scale));
+  out += '.';
+  out.append(digits, digits.size() - static_cast<size_t>(scale));
+}
+
+std::string_view trim_ascii_spaces(std::string_view text) {
+  while (!text.empty() && text.front() == ' ') text.remove_prefix(1);
+  while (!text.empty() && text.back() == ' ') text.remove_suffix(1);
+  return text;
 }
 
 }  // namespace tamis

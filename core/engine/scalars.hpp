@@ -5,6 +5,7 @@
 
 #include <cstdint>
 #include <optional>
+#include <string>
 #include <string_view>
 
 namespace tamis {
@@ -16,5 +17,10 @@ NumberShape number_shape(std::string_view text);
 std::optional<double> parse_double(std::string_view text);
 // true/false/yes/no in any case.
 std::optional<bool> parse_boolean(std::string_view text);
+
+// A scaled decimal in plain notation at its scale: -12.50 for -1250 at scale 2.
+void append_scaled_decimal(int64_t scaled, int scale, std::string& out);
+// text without U+0020 spaces at both ends (what SQL CAST ignores).
+std::string_view trim_ascii_spaces(std::string_view text);
 
 }  // namespace tamis

@@ -107,6 +107,29 @@ bool is_blank(std::string_view s) {
   return true;
 }
 
+std::string_view trim_white_space(std::string_view s) {
+  size_t begin = 0, end = s.size();
+  while (begin < end) {
+    size_t i = begin;
+    if (!is_white_space(next(s, i))) break;
+    begin = i;
+  }
+  while (end > begin) {
+    size_t i = end;
+    if (!is_white_space(previous(s, i))) break;
+    end = i;
+  }
+  return s.substr(begin, end - begin);
+}
+
+bool equals_ascii_ignoring_case(std::string_view a, std::string_view b) {
+  if (a.size() != b.size()) return false;
+  const auto lower = [](char c) { return c >= 'A' && c <= 'Z' ? static_cast<char>(c - 'A' + 'a') : c; };
+  for (size_t i = 0; i < a.size(); ++i)
+    if (lower(a[i]) != lower(b[i])) return false;
+  return true;
+}
+
 void append(std::string& out, char32_t c) {
   if (c < 0x80) {
     out += static_cast<char>(c);

@@ -33,6 +33,10 @@ bool starts_with_white_space(std::string_view s);
 bool ends_with_white_space(std::string_view s);
 // True when s is empty or only Unicode white space.
 bool is_blank(std::string_view s);
+// s without the Unicode white space at both ends.
+std::string_view trim_white_space(std::string_view s);
+// a == b when ASCII letters are compared without case (keywords, format names).
+bool equals_ascii_ignoring_case(std::string_view a, std::string_view b);
 
 void append(std::string& out, char32_t c);
 

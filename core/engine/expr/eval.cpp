@@ -17,6 +17,7 @@
 #include "expr/numeric.hpp"
 #include "expr/program.hpp"
 #include "expr/text_functions.hpp"
+#include "scalars.hpp"
 #include "utf8.hpp"
 
 namespace tamis::expr {
@@ -43,22 +44,6 @@ inline uint8_t on(const uint8_t* mask, size_t i) { return mask ? mask[i] : 1; }
 const DateFormat& iso_format() {
   static const DateFormat iso = DateFormat::compile("%Y-%m-%d").value();
   return iso;
-}
-
-bool same_ascii_word(std::string_view a, std::string_view upper) {
-  if (a.size() != upper.size()) return false;
-  for (size_t i = 0; i < a.size(); ++i) {
-    char c = a[i];
-    if (c >= 'a' && c <= 'z') c = static_cast<char>(c - 'a' + 'A');
-    if (c != upper[i]) return false;
-  }
-  return true;
-}
-
-std::string_view trim_spaces(std::string_view s) {
-  while (!s.empty() && s.front() == ' ') s.remove_prefix(1);
-  while (!s.empty() && s.back() == ' ') s.remove_suffix(1);
-  return s;
 }
 
 std::u32string code_points(std::string_view s) {
@@ -776,7 +761,7 @@ class Evaluator {
           switch (from.type) {
             case VType::text: out.arena += a.text[i]; break;
             case VType::integer:
-            case VType::decimal: append_scaled(a.num[i], from.scale, out.arena); break;
+            case VType::decimal: append_scaled_decimal(a.num[i], from.scale, out.arena); break;
             case VType::date: iso_format().format(static_cast<int32_t>(a.num[i]), out.arena); break;
             case VType::boolean: out.arena += a.num[i] ? "true" : "false"; break;
             case VType::null_type: break;
@@ -814,16 +799,16 @@ class Evaluator {
             break;
           }
           case VType::date: {
-            const auto days = iso_format().parse(trim_spaces(s));
+            const auto days = iso_format().parse(trim_ascii_spaces(s));
             if (!days) return bad("not a date in the form YYYY-MM-DD");
             r[i] = *days;
             break;
           }
           case VType::boolean: {
-            const std::string_view word = trim_spaces(s);
-            if (same_ascii_word(word, "TRUE")) r[i] = 1;
-            else if (same_ascii_word(word, "FALSE")) r[i] = 0;
-            else if (same_ascii_word(word, "UNKNOWN")) {
+            const std::string_view word = trim_ascii_spaces(s);
+            if (utf8::equals_ascii_ignoring_case(word, "TRUE")) r[i] = 1;
+            else if (utf8::equals_ascii_ignoring_case(word, "FALSE")) r[i] = 0;
+            else if (utf8::equals_ascii_ignoring_case(word, "UNKNOWN")) {
               if (!valid) {
                 valid = own_validity(out);
                 for (size_t j = 0; j < n_; ++j) valid[j] = on(a.valid, j);
@@ -845,7 +830,7 @@ class Evaluator {
       r[i] = v.value_or(0);
       if (matters(i) && (!v || !fits(*v))) {
         std::string shown;
-        append_scaled(a.num[i], from.scale, shown);
+        append_scaled_decimal(a.num[i], from.scale, shown);
         return row_error(id, i, "cannot CAST " + shown + " to " + target + ": out of range");
       }
     }

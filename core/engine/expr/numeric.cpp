@@ -97,20 +97,5 @@ NumberRead read_scaled(std::string_view text, int scale, int64_t& out, bool allo
   return NumberRead::ok;
 }
 
-void append_scaled(int64_t value, int scale, std::string& out) {
-  const bool negative = value < 0;
-  const uint64_t magnitude = negative ? 0 - static_cast<uint64_t>(value) : static_cast<uint64_t>(value);
-  std::string digits = std::to_string(magnitude);
-  if (scale > 0 && digits.size() <= static_cast<size_t>(scale))
-    digits.insert(0, static_cast<size_t>(scale) + 1 - digits.size(), '0');
-  if (negative) out += '-';
-  if (scale <= 0) {
-    out += digits;
-    return;
-  }
-  out.append(digits, 0, digits.size() - static_cast<size_t>(scale));
-  out += '.';
-  out.append(digits, digits.size() - static_cast<size_t>(scale));
-}
 
 }  // namespace tamis::expr

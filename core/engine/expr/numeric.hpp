@@ -31,7 +31,5 @@ std::optional<int64_t> rescale(int64_t value, int from_scale, int to_scale);
 enum class NumberRead : uint8_t { ok, malformed, out_of_range };
 NumberRead read_scaled(std::string_view text, int scale, int64_t& out, bool allow_fraction_and_exponent = true);
 
-// Plain notation at the scale: -12.50 for -1250 at scale 2.
-void append_scaled(int64_t value, int scale, std::string& out);
 
 }  // namespace tamis::expr

@@ -23,16 +23,6 @@ constexpr std::array<std::string_view, 24> kReserved = {
     "AND", "AS",  "BETWEEN", "BOTH", "CASE", "CAST",    "ELSE", "END",  "ESCAPE", "FALSE",   "FOR",     "FROM",
     "IN",  "IS",  "LEADING", "LIKE", "NOT",  "NULL",    "OR",   "THEN", "TRAILING", "TRUE", "UNKNOWN", "WHEN"};
 
-bool same_word(std::string_view a, std::string_view upper) {
-  if (a.size() != upper.size()) return false;
-  for (size_t i = 0; i < a.size(); ++i) {
-    char c = a[i];
-    if (c >= 'a' && c <= 'z') c = static_cast<char>(c - 'a' + 'A');
-    if (c != upper[i]) return false;
-  }
-  return true;
-}
-
 // 'value' (built by appending: GCC 12's -Wrestrict misfires on "'" + s + "'").
 std::string quoted(std::string_view value) {
   std::string out;
@@ -44,7 +34,7 @@ std::string quoted(std::string_view value) {
 }
 
 bool is_reserved(std::string_view word) {
-  return std::any_of(kReserved.begin(), kReserved.end(), [&](std::string_view r) { return same_word(word, r); });
+  return std::any_of(kReserved.begin(), kReserved.end(), [&](std::string_view r) { return utf8::equals_ascii_ignoring_case(word, r); });
 }
 
 std::string type_words(VType type, int scale) {
@@ -112,7 +102,7 @@ class Parser {
   const Token& take() { return tokens_[std::min(at_++, tokens_.size() - 1)]; }
   bool at_end() const { return peek().kind == TokenKind::end; }
   bool is_word(const Token& t, std::string_view upper) const {
-    return t.kind == TokenKind::word && same_word(t.value, upper);
+    return t.kind == TokenKind::word && utf8::equals_ascii_ignoring_case(t.value, upper);
   }
   bool at_word(std::string_view upper, size_t ahead = 0) const { return is_word(peek(ahead), upper); }
   bool at_symbol(std::string_view s, size_t ahead = 0) const {
@@ -666,15 +656,15 @@ class Parser {
     const Token& type_token = peek();
     if (type_token.kind != TokenKind::word) return expected("a type name");
     const std::string& name = type_token.value;
-    if (same_word(name, "TEXT") || same_word(name, "VARCHAR")) {
+    if (utf8::equals_ascii_ignoring_case(name, "TEXT") || utf8::equals_ascii_ignoring_case(name, "VARCHAR")) {
       n.type = VType::text;
       take();
       if (at_symbol("("))
         return fail_at(peek(), "a length is not supported here: " + name + " values have no length limit");
-    } else if (same_word(name, "INTEGER") || same_word(name, "INT") || same_word(name, "BIGINT")) {
+    } else if (utf8::equals_ascii_ignoring_case(name, "INTEGER") || utf8::equals_ascii_ignoring_case(name, "INT") || utf8::equals_ascii_ignoring_case(name, "BIGINT")) {
       n.type = VType::integer;
       take();
-    } else if (same_word(name, "DECIMAL") || same_word(name, "NUMERIC")) {
+    } else if (utf8::equals_ascii_ignoring_case(name, "DECIMAL") || utf8::equals_ascii_ignoring_case(name, "NUMERIC")) {
       take();
       if (!at_symbol("("))
         return fail_at(peek(), "expected (precision, scale) after " + name + ", found " + shown(peek()) +
@@ -693,10 +683,10 @@ class Parser {
       n.type = VType::decimal;
       n.scale = scale;
       n.param = *precision;
-    } else if (same_word(name, "DATE")) {
+    } else if (utf8::equals_ascii_ignoring_case(name, "DATE")) {
       n.type = VType::date;
       take();
-    } else if (same_word(name, "BOOLEAN")) {
+    } else if (utf8::equals_ascii_ignoring_case(name, "BOOLEAN")) {
       n.type = VType::boolean;
       take();
     } else {

@@ -2,27 +2,14 @@
 
 #include "dates.hpp"
 #include "expr/numeric.hpp"
+#include "scalars.hpp"
+#include "sql/sql_step.hpp"
 #include "steps/typed_support.hpp"
+#include "utf8.hpp"
 
 namespace tamis {
 
 namespace {
-
-std::string_view trim_spaces(std::string_view s) {
-  while (!s.empty() && s.front() == ' ') s.remove_prefix(1);
-  while (!s.empty() && s.back() == ' ') s.remove_suffix(1);
-  return s;
-}
-
-bool same_word_ignoring_ascii_case(std::string_view a, std::string_view lower) {
-  if (a.size() != lower.size()) return false;
-  for (size_t i = 0; i < a.size(); ++i) {
-    char c = a[i];
-    if (c >= 'A' && c <= 'Z') c = static_cast<char>(c - 'A' + 'a');
-    if (c != lower[i]) return false;
-  }
-  return true;
-}
 
 bool is_number(Type t) { return t == Type::integer || t == Type::decimal; }
 
@@ -100,13 +87,25 @@ class Cast final : public Step {
     return Ok{};
   }
 
-  SqlSupport sql_support(Dialect dialect) const override {
-    // No SQL script writes a rejects file. Converting text under these exact
-    // rules needs a shape test first (a regular expression), which SQLite lacks.
-    if (on_error_ == OnError::reject) return SqlSupport::unsupported;
-    if (input_[column_].type == Type::text && to_ != Type::text && dialect == Dialect::sqlite)
-      return SqlSupport::approximate;
-    return SqlSupport::exact;
+  // Only text and integers to text are exported yet (an integer's text is
+  // canonical in every dialect); converting text under these exact rules
+  // needs shape tests no SQL has been checked against a database for. (No
+  // SQL script writes a rejects file.)
+  SqlSupport sql_support(Dialect) const override {
+    const Type from = input_[column_].type;
+    return to_ == Type::text && (from == Type::text || from == Type::integer) ? SqlSupport::exact
+                                                                              : SqlSupport::unsupported;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    SqlStepText out;
+    if (input_[column_].type == Type::text) return out;
+    const char* text_type = sql.dialect == Dialect::mysql    ? "CHAR"
+                            : sql.dialect == Dialect::spark  ? "STRING"
+                            : sql.dialect == Dialect::duckdb ? "VARCHAR"
+                                                             : "TEXT";
+    out.select = sql.select_replacing({{column_, std::string("CAST(") + sql.column(column_) + std::string(" AS ") + text_type + ")"}});
+    return out;
   }
 
   nlohmann::ordered_json parameters() const override {
@@ -135,16 +134,16 @@ class Cast final : public Step {
                                                 ? Converted::value
                                                 : Converted::failed;
                                    case Type::date:
-                                     if (const auto days = iso.parse(trim_spaces(value))) {
+                                     if (const auto days = iso.parse(trim_ascii_spaces(value))) {
                                        out = *days;
                                        return Converted::value;
                                      }
                                      return Converted::failed;
                                    case Type::boolean: {
-                                     const std::string_view word = trim_spaces(value);
-                                     if (same_word_ignoring_ascii_case(word, "unknown")) return Converted::null;
-                                     out = same_word_ignoring_ascii_case(word, "true") ? 1 : 0;
-                                     return out || same_word_ignoring_ascii_case(word, "false") ? Converted::value
+                                     const std::string_view word = trim_ascii_spaces(value);
+                                     if (utf8::equals_ascii_ignoring_case(word, "unknown")) return Converted::null;
+                                     out = utf8::equals_ascii_ignoring_case(word, "true") ? 1 : 0;
+                                     return out || utf8::equals_ascii_ignoring_case(word, "false") ? Converted::value
                                                                                                : Converted::failed;
                                    }
                                    case Type::text: break;

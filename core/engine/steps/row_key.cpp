@@ -28,21 +28,6 @@ constexpr size_t kSpillWriteBytes = 256 << 10;
 uint32_t slot_hash(uint64_t slot) { return static_cast<uint32_t>(slot >> 32); }
 uint64_t slot_record(uint64_t slot) { return ((slot & 0xFFFFFFFFu) - 1) * kRecordAlign; }
 
-std::string_view without_white_space_ends(std::string_view v) {
-  size_t begin = 0, end = v.size();
-  while (begin < end) {
-    size_t i = begin;
-    if (!utf8::is_white_space(utf8::next(v, i))) break;
-    begin = i;
-  }
-  while (end > begin) {
-    size_t i = end;
-    if (!utf8::is_white_space(utf8::previous(v, i))) break;
-    end = i;
-  }
-  return v.substr(begin, end - begin);
-}
-
 // Unicode full case folding (CaseFolding.txt statuses C and F), by ICU;
 // among ASCII characters it folds exactly A-Z.
 void fold_case_into(std::string_view v, std::string& out) {
@@ -113,7 +98,7 @@ RowKeys::RowKeys(const Table& batch, std::span<const size_t> columns, KeyCompare
         has_null_[r] = 1;
       } else if (is_text[j]) {
         std::string_view v = cell.text();
-        if (compare == KeyCompare::trimmed) v = without_white_space_ends(v);
+        if (compare == KeyCompare::trimmed) v = utf8::trim_white_space(v);
         if (compare == KeyCompare::casefold) {
           fold_case_into(v, folded);
           v = folded;
