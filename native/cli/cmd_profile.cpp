@@ -8,6 +8,8 @@
 #include "commands.hpp"
 #include "profile.hpp"
 #include "progress.hpp"
+#include "report/profile_html.hpp"
+#include "run_support.hpp"
 #include "utf8.hpp"
 
 namespace tamis::cli {
@@ -24,6 +26,10 @@ CLI::App* add_profile_command(CLI::App& app, ProfileArgs& args) {
   cmd->add_option("input", args.input, "Input file ('-' for standard input)")->required();
   cmd->add_flag("--json", args.json, "Print one JSON object instead of the readable report");
   cmd->add_flag("--strict", args.strict, "Stop at the first malformed record (exit 3)");
+  cmd->add_option("--html", args.html,
+                  "Also write the profile as one self-contained HTML page (styles and charts inline, no\n"
+                  "script, nothing fetched; prints well) to this file, written only when profiling succeeds;\n"
+                  "'-' sends the page to standard output instead of the report");
   args.reading.add_to(*cmd);
   return cmd;
 }
@@ -145,6 +151,10 @@ int run_profile(const ProfileArgs& args) {
   auto options = args.reading.to_csv_options();
   if (!options) return report_error(options.error());
   options->lenient = !args.strict;
+  if (args.html == "-" && args.json)
+    return report_error(usage_error("--json and --html - both want standard output: give --html a file name"));
+  if (!args.html.empty() && args.html != "-" && same_file(args.input, args.html))
+    return report_error(usage_error("'" + args.html + "' is the input; tamis never overwrites what it reads"));
   auto source = open_file_source(args.input);
   if (!source) return report_error(source.error());
   const std::string display = args.input == "-" ? "<stdin>" : args.input;
@@ -161,6 +171,19 @@ int run_profile(const ProfileArgs& args) {
   {
     Progress progress("profiling", 1000);
     while (!profiler.step(1 << 18)) progress.update(static_cast<uint64_t>(profiler.progress() * 1000));
+  }
+  if (!args.html.empty()) {
+    ProfilePageInput page;
+    page.file = display;
+    page.read = &report;
+    page.table = &*table;
+    page.profile = &profiler.result();
+    page.findings_searched = false;
+    auto sink = open_file_sink(args.html);
+    if (!sink) return report_error(sink.error());
+    if (Status s = (*sink)->write(profile_html(page)); !s) return report_error(s.error());
+    if (Status s = (*sink)->commit(); !s) return report_error(s.error());
+    if (args.html == "-") return 0;
   }
   if (args.json) std::cout << to_json(display, report, profiler.result()).dump(2) << '\n';
   else print_readable(display, report, profiler.result());

@@ -15,6 +15,7 @@
 #include "csv_writer.hpp"
 #include "csvw.hpp"
 #include "progress.hpp"
+#include "report/run_report_html.hpp"
 #include "run_report.hpp"
 #include "run_support.hpp"
 
@@ -32,6 +33,10 @@ CLI::App* add_run_command(CLI::App& app, RunArgs& args) {
       "fit input.columns types, rows a step rejects) are counted against the rejects cap: above\n"
       "it the run stops with exit 3 and writes no output, but the rejects file, when asked for,\n"
       "is kept so the rows can be inspected. A require step with on_fail \"stop\" exits 1.\n"
+      "The run reports (--report, --report-html) are written with the output, so only when the\n"
+      "run succeeds: a failed require (exit 1) or a run over the rejects cap (exit 3) writes\n"
+      "neither, since its counts would describe a run that did not finish; the error message\n"
+      "names the step and the first failing row, and the rejects file, if asked for, is kept.\n"
       "Row accounting always balances: rows read = written + removed + rejected.\n"
       "Example: tamis run survey.recipe.json survey.csv -o clean.csv --report report.json");
   cmd->add_option("recipe", args.recipe, "Recipe file (JSON, tamis_recipe 1)")->required();
@@ -39,6 +44,9 @@ CLI::App* add_run_command(CLI::App& app, RunArgs& args) {
   cmd->add_option("-o,--output", args.output, "Output file ('-' for standard output, the default)")
       ->capture_default_str();
   cmd->add_option("--report", args.report, "Write the run report (JSON) to this file");
+  cmd->add_option("--report-html", args.report_html,
+                  "Write the run report as one self-contained HTML page (per-step counts, charts of the\n"
+                  "changes, removed rows with their source lines; no script, nothing fetched) to this file");
   cmd->add_option("--rejects", args.rejects, "Write rejected rows to this file (CSV: line,reason,record)");
   cmd->add_option("--metadata", args.metadata,
                   "Write W3C CSV on the Web (CSVW) metadata describing the output to this file (needs -o FILE)");
@@ -140,11 +148,15 @@ struct Reject {
   std::string record;
 };
 
-Status write_json_file(const std::string& path, const nlohmann::ordered_json& doc) {
+Status write_text_file(const std::string& path, const std::string& text) {
   auto sink = open_file_sink(path);
   if (!sink) return sink.take_error();
-  if (Status s = (*sink)->write(doc.dump(2) + "\n"); !s) return s;
+  if (Status s = (*sink)->write(text); !s) return s;
   return (*sink)->commit();
+}
+
+Status write_json_file(const std::string& path, const nlohmann::ordered_json& doc) {
+  return write_text_file(path, doc.dump(2) + "\n");
 }
 
 std::string metadata_url(const std::string& output, const std::string& metadata) {
@@ -159,7 +171,7 @@ std::string metadata_url(const std::string& output, const std::string& metadata)
 int run_run(const RunArgs& args) {
   auto recipe = load_recipe_file(args.recipe);
   if (!recipe) return report_error(recipe.error());
-  for (const std::string* path : {&args.output, &args.report, &args.rejects, &args.metadata})
+  for (const std::string* path : {&args.output, &args.report, &args.report_html, &args.rejects, &args.metadata})
     if (!path->empty() && (same_file(args.input, *path) || same_file(args.recipe, *path)))
       return report_error(usage_error("'" + *path +
                                       "' is the input or the recipe; tamis never overwrites what it reads"));
@@ -358,6 +370,9 @@ int run_run(const RunArgs& args) {
   if (written_schema) compiled->output = *written_schema;
   if (!args.report.empty())
     if (Status s = write_json_file(args.report, run_report_json(*recipe, *compiled, run.changes(), facts)); !s)
+      return report_error(s.error());
+  if (!args.report_html.empty())
+    if (Status s = write_text_file(args.report_html, run_report_html(*recipe, *compiled, run.changes(), facts)); !s)
       return report_error(s.error());
   std::vector<std::string> metadata_warnings;
   if (!args.metadata.empty()) {

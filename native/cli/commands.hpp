@@ -39,6 +39,7 @@ struct ProfileArgs {
   std::string input;
   bool json = false;
   bool strict = false;
+  std::string html;
   ReadingOptions reading;
 };
 CLI::App* add_profile_command(CLI::App& app, ProfileArgs& args);
@@ -49,6 +50,7 @@ struct RunArgs {
   std::string input;
   std::string output = "-";
   std::string report;
+  std::string report_html;
   std::string rejects;
   std::string metadata;
   std::string max_rejects;
