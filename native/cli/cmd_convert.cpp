@@ -1,10 +1,10 @@
-#include <filesystem>
 #include <iostream>
 
 #include "batch_pipeline.hpp"
 #include "commands.hpp"
 #include "csv_writer.hpp"
 #include "progress.hpp"
+#include "run_support.hpp"
 
 namespace tamis::cli {
 
@@ -31,40 +31,6 @@ CLI::App* add_convert_command(CLI::App& app, ConvertArgs& args) {
   return cmd;
 }
 
-namespace {
-
-bool same_file(const std::string& a, const std::string& b) {
-  std::error_code ec;
-  return a != "-" && b != "-" && std::filesystem::exists(b, ec) && std::filesystem::equivalent(a, b, ec);
-}
-
-// Rejected records are written as they are found, so none is held in memory.
-class RejectsFile {
- public:
-  Status open(const std::string& path) {
-    auto sink = open_file_sink(path);
-    if (!sink) return sink.take_error();
-    sink_ = std::move(*sink);
-    auto writer = CsvWriter::make(*sink_, CsvWriteOptions{});
-    if (!writer) return writer.take_error();
-    writer_.emplace(std::move(*writer));
-    const std::string_view header[] = {"line", "reason", "record"};
-    return writer_->write_row(header);
-  }
-  Status add(const RejectedRecord& r) {
-    const std::string line = std::to_string(r.line);
-    const std::string_view row[] = {line, r.reason, r.text};
-    return writer_->write_row(row);
-  }
-  Status finish() { return writer_ ? writer_->finish() : Status(Ok{}); }
-
- private:
-  std::unique_ptr<ByteSink> sink_;
-  std::optional<CsvWriter> writer_;
-};
-
-}  // namespace
-
 int run_convert(const ConvertArgs& args) {
   auto options = args.reading.to_csv_options();
   if (!options) return report_error(options.error());
@@ -86,7 +52,7 @@ int run_convert(const ConvertArgs& args) {
   if (!source) return report_error(source.error());
   const std::string display = args.input == "-" ? "<stdin>" : args.input;
   auto reader = CsvReader::open(std::move(*source), display, *options,
-                                [&](const RejectedRecord& r) { return rejects.add(r); });
+                                [&](const RejectedRecord& r) { return rejects.add(r.line, r.reason, r.text); });
   if (!reader) return report_error(reader.error());
   CsvReader& in = **reader;
 
@@ -111,7 +77,7 @@ int run_convert(const ConvertArgs& args) {
     progress.update(in.bytes_read());
   }
   progress.finish();
-  if (Status s = rejects.finish(); !s) return report_error(s.error());
+  if (Status s = rejects.commit(); !s) return report_error(s.error());
   if (Status s = writer->finish(); !s) return report_error(s.error());
 
   const ReadReport& report = in.report();
