@@ -13,7 +13,9 @@ async function main() {
     try {
       for (const statement of c.statements) await connection.run(statement);
       const reader = await connection.runAndReadAll(c.query);
-      results.push({ rows: reader.getRowsJS() });
+      // BIGINT arrives as a JavaScript BigInt, which JSON cannot hold: its decimal text.
+      const rows = reader.getRowsJS().map((row) => row.map((v) => (typeof v === 'bigint' ? v.toString() : v)));
+      results.push({ rows });
     } catch (e) {
       results.push({ error: String(e.message || e) });
     }

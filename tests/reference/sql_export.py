@@ -102,9 +102,17 @@ def step_cases(rng):
         ('require in_set', {'op': 'require', 'rule': 'in_set', 'columns': [rng.choice(cols)], 'values': PIECES[:20]}),
         ('require row_count', {'op': 'require', 'rule': 'row_count', 'min': rng.randint(1, 50)}),
         ('require pattern', {'op': 'require', 'rule': 'pattern', 'columns': some(), 'pattern': '.*'}),
-        ('keep_rows', {'op': 'keep_rows', 'where': 'site IS NOT NULL'}),
-        ('drop_rows', {'op': 'drop_rows', 'where': "site = 'Oak'"}),
-        ('derive_column', {'op': 'derive_column', 'name': 'both', 'expr': "site || district"}),
+        ('keep_rows', {'op': 'keep_rows', 'where': rng.choice([
+            'site IS NOT NULL', "site < district OR note IN ('a', 'Z', 'Oak ')", "NOT (code BETWEEN 'A' AND 'a')",
+            "site <> 'Oak' AND (note IS NULL OR note > 'N')"])}),
+        ('drop_rows', {'op': 'drop_rows', 'where': rng.choice([
+            "site = 'Oak'", "district NOT IN ('Oak', 'it''s')", "NULLIF(site, 'Oak') IS NULL",
+            "CASE site WHEN 'Oak' THEN TRUE WHEN 'A' THEN NULL ELSE FALSE END"])}),
+        ('derive_column', {'op': 'derive_column', 'name': 'both', 'expr': rng.choice([
+            "site || district", "CASE WHEN site = 'Oak' THEN 'tree' ELSE COALESCE(note, 'none') END",
+            "NULLIF(site, '') || '|' || COALESCE(code, '')"])}),
+        ('derive_column integer', {'op': 'derive_column', 'name': 'n', 'expr': '2 * 3 - 10'}),
+        ('cast text', {'op': 'cast', 'column': 'code', 'to': 'text'}),
         ('split_column', {'op': 'split_column', 'column': 'site', 'separator': ' ', 'into': ['first', 'rest']}),
         ('parse_date', {'op': 'parse_date', 'column': 'code', 'formats': ['%Y-%m-%d'], 'on_error': 'null'}),
         ('parse_number', {'op': 'parse_number', 'column': 'code', 'scale': 1, 'on_error': 'null'}),
@@ -124,6 +132,8 @@ MUST_EXPORT = {
     'deduplicate exact': DIALECTS, 'deduplicate trimmed': DIALECTS, 'fill_from_group': DIALECTS,
     'carry_forward': DIALECTS, 'require not_null': DIALECTS, 'require unique': DIALECTS, 'require in_set': DIALECTS,
     'require row_count': DIALECTS, 'drop_columns': DIALECTS, 'rename_columns': DIALECTS, 'reorder_columns': DIALECTS,
+    'keep_rows': DIALECTS, 'drop_rows': DIALECTS, 'derive_column': DIALECTS, 'cast text': DIALECTS,
+    'derive_column integer': ['duckdb', 'postgres', 'mysql'],
 }
 # Column steps change names, so generated recipes put them last only.
 COLUMN_STEPS = ('drop_columns', 'rename_columns', 'reorder_columns')
@@ -318,8 +328,15 @@ def duckdb_case(rows, script, query):
 
 
 # ---------------------------------------------------------------- comparing
+def canonical(row):
+    # Integers come back as numbers; their canonical text (design §3) is str().
+    return [v if v is None or isinstance(v, str) else str(v) for v in row]
+
+
 def compare(label, expected, got):
     header, want = expected
+    if not isinstance(got, str):
+        got = [canonical(r) for r in got]
     if header == 'require failed':
         if not (isinstance(got, str) and got.startswith('error')):
             fail(label + ': tamis run stopped on a require step, the script did not fail')

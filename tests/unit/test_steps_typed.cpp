@@ -396,16 +396,16 @@ TEST_CASE("unit_steps_typed: parameters round-trip and every step says what it d
 TEST_CASE("unit_steps_typed: SQL support is declared per dialect") {
   auto support = [](const json& step, Dialect d) { return parse_step(step, 0, kColumns).value()->sql_support(d); };
   for (const Dialect d : {Dialect::postgres, Dialect::mysql, Dialect::sqlite, Dialect::duckdb, Dialect::spark}) {
-    CHECK(support(parse_date({"%Y-%m-%d"}), d) == SqlSupport::exact);
-    // A SQL script cannot write a rejects file.
+    // Text to dates, numbers and other types is not exported yet (no SQL for
+    // it has been checked against a database); a SQL script cannot write a
+    // rejects file either.
+    CHECK(support(parse_date({"%Y-%m-%d"}), d) == SqlSupport::unsupported);
     CHECK(support(parse_date({"%Y-%m-%d"}, "reject"), d) == SqlSupport::unsupported);
     CHECK(support(cast("integer", {{"on_error", "reject"}}), d) == SqlSupport::unsupported);
-    // A type that depends on the data cannot be declared in advance.
-    CHECK(support(parse_number(), d) == SqlSupport::approximate);
+    CHECK(support(parse_number(), d) == SqlSupport::unsupported);
+    CHECK(support(cast("integer"), d) == SqlSupport::unsupported);
     CHECK(support({{"op", "cast"}, {"column", "n"}, {"to", "text"}}, d) == SqlSupport::exact);
   }
-  CHECK(support(cast("integer"), Dialect::sqlite) == SqlSupport::approximate);
-  CHECK(support(cast("integer"), Dialect::postgres) == SqlSupport::exact);
 }
 
 }  // namespace

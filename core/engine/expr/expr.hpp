@@ -132,6 +132,9 @@ class Expression {
 
   // Whether the SQL export can give the same results in this dialect.
   SqlSupport sql_support(Dialect dialect) const;
+  // The expression in the dialect's SQL (expr/sql_render.cpp), given the SQL
+  // of each input column; an error names the first operator not written.
+  Result<std::string> to_sql(Dialect dialect, const std::vector<std::string>& column_sql) const;
 
  private:
   explicit Expression(std::shared_ptr<const expr::Program> program) : program_(std::move(program)) {}

@@ -1,6 +1,9 @@
 #include "steps/derive_column.hpp"
 
+#include <algorithm>
+
 #include "expr/expr.hpp"
+#include "sql/sql_step.hpp"
 
 namespace tamis {
 
@@ -35,7 +38,27 @@ class DeriveColumn final : public Step {
     return Table::make(std::move(names), std::move(columns), batch.source_lines_ptr());
   }
 
-  SqlSupport sql_support(Dialect dialect) const override { return expression_.sql_support(dialect); }
+  // The expression's own support, where its operators are written in the
+  // dialect (expr/sql_render.cpp). MySQL and SQLite store booleans as 1/0,
+  // not as the canonical true/false.
+  SqlSupport sql_support(Dialect dialect) const override {
+    if (expression_.type() == Type::boolean && (dialect == Dialect::mysql || dialect == Dialect::sqlite))
+      return SqlSupport::unsupported;
+    size_t columns = 0;
+    for (const size_t c : expression_.columns()) columns = std::max(columns, c + 1);
+    if (!expression_.to_sql(dialect, std::vector<std::string>(columns, "c"))) return SqlSupport::unsupported;
+    return expression_.sql_support(dialect);
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    std::vector<std::string> columns;
+    for (size_t c = 0; c < sql.input.size(); ++c) columns.push_back(sql.column(c));
+    auto value = expression_.to_sql(sql.dialect, columns);
+    if (!value) return value.take_error();
+    SqlStepText out;
+    out.select = std::string("SELECT ") + sql.column_list() + std::string(",\n       ") + *value + std::string(" AS ") + sql.name(name_) + std::string("\nFROM ") + sql.from;
+    return out;
+  }
 
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;

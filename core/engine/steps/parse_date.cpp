@@ -99,12 +99,11 @@ class ParseDate final : public Step {
     return Ok{};
   }
 
-  SqlSupport sql_support(Dialect) const override {
-    // Every dialect can test the exact shape (regular expressions, or GLOB
-    // patterns in SQLite) and the calendar before converting. A rejects
-    // file, though, is something a SQL script cannot write.
-    return on_error_ == OnError::reject ? SqlSupport::unsupported : SqlSupport::exact;
-  }
+  // Not exported yet: the SQL must check the same shape (%Y exactly four
+  // digits, whole value) and calendar as the engine's scanner before
+  // converting, and no such SQL has been checked against a database. (A
+  // rejects file is something no SQL script can write anyway.)
+  SqlSupport sql_support(Dialect) const override { return SqlSupport::unsupported; }
 
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;

@@ -3,6 +3,7 @@
 #include <algorithm>
 
 #include "expr/expr.hpp"
+#include "sql/sql_step.hpp"
 
 namespace tamis {
 
@@ -106,7 +107,26 @@ class RowFilter final : public Step {
     return select_rows(batch, keep);
   }
 
-  SqlSupport sql_support(Dialect dialect) const override { return where_.sql_support(dialect); }
+  // The expression's own support, where its operators are written in the
+  // dialect (expr/sql_render.cpp); drop_rows keeps the rows whose condition
+  // is not TRUE (FALSE or NULL), hence the COALESCE.
+  SqlSupport sql_support(Dialect dialect) const override {
+    size_t columns = 0;
+    for (const size_t c : where_.columns()) columns = std::max(columns, c + 1);
+    if (!where_.to_sql(dialect, std::vector<std::string>(columns, "c"))) return SqlSupport::unsupported;
+    return where_.sql_support(dialect);
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    std::vector<std::string> columns;
+    for (size_t c = 0; c < sql.input.size(); ++c) columns.push_back(sql.column(c));
+    auto condition = where_.to_sql(sql.dialect, columns);
+    if (!condition) return condition.take_error();
+    SqlStepText out;
+    out.select = sql.select_replacing({}) + "\nWHERE " +
+                 (kind_ == RowFilterKind::keep ? *condition : std::string("NOT COALESCE(") + *condition + ", FALSE)");
+    return out;
+  }
 
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;
