@@ -239,6 +239,18 @@ class Postgres:
         finally:
             cur.close()
 
+    def run_loading(self, script, query):
+        """Runs a script that loads its own raw table (COPY, read by the server)."""
+        cur = self.con.cursor()
+        try:
+            cur.execute(script)
+            cur.execute(query)
+            return [list(r) for r in cur.fetchall()]
+        except self.psycopg2.Error as e:
+            return 'error: ' + str(e).strip()
+        finally:
+            cur.close()
+
     def stop(self):
         try:
             self.con.close()
@@ -295,6 +307,21 @@ class MariaDB:
         finally:
             cur.close()
 
+    def run_loading(self, script, query):
+        """Runs a script that loads its own raw table (LOAD DATA LOCAL INFILE)."""
+        con = self.pymysql.connect(unix_socket=self.socket, user='root', password='', charset='utf8mb4',
+                                   autocommit=True, local_infile=True, database='tamis_test')
+        cur = con.cursor()
+        try:
+            for statement in statements_of(script):
+                cur.execute(statement)
+            cur.execute(query)
+            return [[decode(v) for v in r] for r in cur.fetchall()]
+        except self.pymysql.Error as e:
+            return 'error: ' + str(e)
+        finally:
+            con.close()
+
     def stop(self):
         try:
             self.con.close()
@@ -305,6 +332,65 @@ class MariaDB:
             self.process.wait(120)
         except subprocess.TimeoutExpired:
             self.process.kill()
+
+
+def run_sqlite_shell(work, script, query):
+    """Runs a script with the sqlite3 shell (its .import loads the raw table)."""
+    db = os.path.join(work, 'load.sqlite')
+    if os.path.exists(db):
+        os.remove(db)
+    p = subprocess.run(['sqlite3', '-bail', db], input=script, capture_output=True, text=True)
+    if p.returncode != 0 or p.stderr.strip():
+        return 'error: ' + p.stderr
+    con = sqlite3.connect(db)
+    try:
+        return [list(r) for r in con.execute(query)]
+    finally:
+        con.close()
+
+
+def check_load_scripts(work, servers, rng, counts):
+    """--load-script: each dialect's own statements load the CSV file (quoted
+    fields with commas, quotes and line breaks, empty fields) into the raw
+    table, and the script's result equals `tamis run` on that file."""
+    duck_cases, duck_labels = [], []
+    for n in range(6):
+        steps = [{'op': 'trim', 'columns': '*'}, {'op': 'to_null', 'columns': ['note'], 'values': ['N/A'], 'blank': True},
+                 {'op': 'deduplicate', 'columns': ['site'], 'keep': 'last'}]
+        recipe = recipe_of(steps[:n % 3 + 1])
+        rows = messy_table(rng, 50)
+        recipe_path = os.path.join(work, 'load_recipe.json')
+        csv_path = os.path.join(work, 'load_%d.csv' % n)
+        with open(recipe_path, 'w', encoding='utf-8') as f:
+            json.dump(recipe, f, ensure_ascii=False)
+        write_csv(csv_path, COLUMNS, rows)
+        os.chmod(csv_path, 0o644)  # the PostgreSQL server reads it as user postgres
+        expected = tamis_run(work, recipe_path, csv_path)
+        query = 'SELECT ' + ', '.join('"%s"' % c for c in COLUMNS) + ' FROM tamis_clean ORDER BY tamis_line'
+        for dialect in DIALECTS:
+            p = subprocess.run([TAMIS, 'sql', recipe_path, '--dialect', dialect, '--load-script', csv_path],
+                               capture_output=True, text=True)
+            where = 'load script %d on %s' % (n, dialect)
+            if p.returncode != 0:
+                fail(where + ': tamis sql exit %d: %s' % (p.returncode, p.stderr.strip()))
+                continue
+            counts[dialect]['loaded'] += 1
+            if dialect == 'sqlite':
+                compare(where, expected, run_sqlite_shell(work, p.stdout, query))
+            elif dialect == 'duckdb':
+                duck_cases.append({'statements': statements_of(p.stdout), 'query': query})
+                duck_labels.append((where, expected))
+            elif dialect == 'postgres' and 'postgres' in servers:
+                compare(where, expected, servers['postgres'].run_loading(p.stdout, query))
+            elif dialect == 'mysql' and 'mysql' in servers:
+                compare(where, expected, servers['mysql'].run_loading(p.stdout, query.replace('"', '`')))
+    for (where, expected), got in zip(duck_labels, duckdb_batch(duck_cases)):
+        if got is not None:
+            compare(where, expected, got)
+    p = subprocess.run([TAMIS, 'sql', os.path.join(work, 'load_recipe.json'), '--dialect', 'spark', '--load-script',
+                        'x.csv'], capture_output=True, text=True)
+    if p.returncode != 2 or 'Spark SQL has no statement' not in p.stderr:
+        fail('--load-script for spark: expected the documented refusal, got exit %d: %s' % (p.returncode, p.stderr))
 
 
 def duckdb_batch(cases):
@@ -358,7 +444,7 @@ def main():
     work = tempfile.mkdtemp(prefix='tamis-sql-')
     os.chmod(work, 0o755)
     servers = {}
-    counts = {d: {'compared': 0, 'refused': 0} for d in DIALECTS}
+    counts = {d: {'compared': 0, 'refused': 0, 'loaded': 0} for d in DIALECTS}
     timings = {}
     try:
         t = time.monotonic()
@@ -432,6 +518,10 @@ def main():
                 compare(where, expected, got)
         timings['differential (%d recipes x 4 engines)' % len(cases)] = time.monotonic() - t
 
+        t = time.monotonic()
+        check_load_scripts(work, servers, rng, counts)
+        timings['load scripts'] = time.monotonic() - t
+
         # The demo recipe: exported where every step is exact, else refused
         # with the documented message naming the step, op and dialect.
         demo = os.path.join(ROOT, 'assets', 'demo', 'tree_survey.recipe.json')
@@ -451,7 +541,8 @@ def main():
         shutil.rmtree(work, ignore_errors=True)
 
     for d in DIALECTS:
-        print('%-8s compared %4d recipes, refused %4d' % (d, counts[d]['compared'], counts[d]['refused']))
+        print('%-8s compared %4d recipes, refused %4d, %d load scripts' %
+              (d, counts[d]['compared'], counts[d]['refused'], counts[d]['loaded']))
         if counts[d]['compared'] < 50:
             fail('%s: only %d recipes compared' % (d, counts[d]['compared']))
     for k, v in timings.items():
