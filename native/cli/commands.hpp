@@ -74,6 +74,18 @@ struct ExplainArgs {
 CLI::App* add_explain_command(CLI::App& app, ExplainArgs& args);
 int run_explain(const ExplainArgs& args);
 
+struct SimilarArgs {
+  std::string input;
+  std::string column;
+  std::string method = "token_key";
+  double threshold = 0.85;
+  bool json = false;
+  std::string output;
+  ReadingOptions reading;
+};
+CLI::App* add_similar_command(CLI::App& app, SimilarArgs& args);
+int run_similar(const SimilarArgs& args);
+
 struct SqlArgs {
   std::string recipe;
   std::string dialect;
