@@ -26,6 +26,10 @@ CLI::App* add_profile_command(CLI::App& app, ProfileArgs& args) {
   cmd->add_option("input", args.input, "Input file ('-' for standard input)")->required();
   cmd->add_flag("--json", args.json, "Print one JSON object instead of the readable report");
   cmd->add_flag("--strict", args.strict, "Stop at the first malformed record (exit 3)");
+  cmd->add_flag("--findings", args.findings,
+                "Also list the problems found (duplicates, stray white space, placeholders for missing\n"
+                "values, variant spellings, dates and numbers stored as text, fillable NULLs, empty rows\n"
+                "and columns), ranked by rows affected, each with ready-made recipe steps and a preview");
   cmd->add_option("--html", args.html,
                   "Also write the profile as one self-contained HTML page (styles and charts inline, no\n"
                   "script, nothing fetched; prints well) to this file, written only when profiling succeeds;\n"
@@ -185,8 +189,16 @@ int run_profile(const ProfileArgs& args) {
     if (Status s = (*sink)->commit(); !s) return report_error(s.error());
     if (args.html == "-") return 0;
   }
-  if (args.json) std::cout << to_json(display, report, profiler.result()).dump(2) << '\n';
-  else print_readable(display, report, profiler.result());
+  std::vector<Finding> findings;
+  if (args.findings) findings = scan_findings(*table, profiler.result(), FindingOptions{});
+  if (args.json) {
+    auto doc = to_json(display, report, profiler.result());
+    if (args.findings) doc["findings"] = findings_json(findings);
+    std::cout << doc.dump(2) << '\n';
+  } else {
+    print_readable(display, report, profiler.result());
+    if (args.findings) print_findings(std::cout, findings);
+  }
   return 0;
 }
 

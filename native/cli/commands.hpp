@@ -7,6 +7,7 @@
 #include <string>
 
 #include "csv_reader.hpp"
+#include "findings/findings.hpp"
 
 namespace tamis::cli {
 
@@ -39,6 +40,7 @@ struct ProfileArgs {
   std::string input;
   bool json = false;
   bool strict = false;
+  bool findings = false;
   std::string html;
   ReadingOptions reading;
 };
@@ -97,6 +99,23 @@ struct SqlArgs {
 };
 CLI::App* add_sql_command(CLI::App& app, SqlArgs& args);
 int run_sql(const SqlArgs& args);
+
+struct SuggestArgs {
+  std::string input;
+  std::string output;
+  std::string title;
+  std::vector<std::string> sentinels;
+  bool strict = false;
+  ReadingOptions reading;
+};
+CLI::App* add_suggest_command(CLI::App& app, SuggestArgs& args);
+int run_suggest(const SuggestArgs& args);
+
+// Findings for profile --findings and suggest (cmd_suggest.cpp): scanned with
+// a progress bar, printed for people or as JSON.
+std::vector<Finding> scan_findings(const Table& table, const TableProfile& profile, const FindingOptions& options);
+void print_findings(std::ostream& out, const std::vector<Finding>& findings);
+nlohmann::ordered_json findings_json(const std::vector<Finding>& findings);
 
 // Prints "tamis: <error>" on stderr and returns the error's exit code.
 int report_error(const Error& error);

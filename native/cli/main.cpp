@@ -32,6 +32,8 @@ int main(int argc, char** argv) {
   CLI::App* run = add_run_command(app, run_args);
   CLI::App* check = add_check_command(app, check_args);
   CLI::App* explain = add_explain_command(app, explain_args);
+  SuggestArgs suggest_args;
+  CLI::App* suggest = add_suggest_command(app, suggest_args);
   SimilarArgs similar_args;
   CLI::App* similar = add_similar_command(app, similar_args);
   SqlArgs sql_args;
@@ -46,6 +48,7 @@ int main(int argc, char** argv) {
   if (run->parsed()) return run_run(run_args);
   if (check->parsed()) return run_check(check_args);
   if (explain->parsed()) return run_explain(explain_args);
+  if (suggest->parsed()) return run_suggest(suggest_args);
   if (similar->parsed()) return run_similar(similar_args);
   if (sql->parsed()) return run_sql(sql_args);
   return 2;

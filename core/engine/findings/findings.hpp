@@ -11,6 +11,12 @@
 // Safe fixes (applied by a starter recipe without asking): trim, blank and
 // sentinel values to NULL, removal of exact duplicate rows. Every other fix
 // carries why_review: the reason a person should decide.
+//
+// What each detector sees: duplicates and white space are found on the table
+// as given; blanks and sentinels after the trims; everything else after the
+// trims and the NULL conversions (not after duplicate removal, so row counts
+// stay those of the file). Previews are computed on the same view, which is
+// also the order a starter recipe applies the fixes in.
 #pragma once
 
 #include <nlohmann/json.hpp>
@@ -55,7 +61,8 @@ struct Finding {
   std::vector<std::string> columns;
   uint64_t rows_affected = 0;
   std::string explanation;           // a few plain sentences
-  std::vector<std::string> details;  // extra facts, e.g. the date values that fit no format
+  std::vector<std::string> details;  // extra facts in words, e.g. the date values that fit no format
+  nlohmann::ordered_json facts = nlohmann::ordered_json::object();  // the same facts as numbers and lists
   std::vector<SuggestedFix> fixes;   // the first is the recommended one
 };
 
@@ -68,7 +75,8 @@ struct FindingOptions {
   size_t examples = 5;  // before -> after examples per fix
 };
 
-// A detector kind and what it looks for, for --help and the workbench.
+// A detector kind and what it looks for, for --help and the workbench. The
+// table's order is the order in which a starter recipe applies the fixes.
 struct FindingKind {
   std::string_view kind;
   std::string_view summary;
@@ -80,7 +88,7 @@ std::vector<Finding> find_problems(const Table& table, const TableProfile& profi
                                    const FindingOptions& options = {});
 
 // The same work in slices for the shells (no threads in the browser): each
-// step() runs detectors until about `budget` cells of work are done.
+// step() runs whole detectors until about `budget` cells of work are done.
 class FindingScanner {
  public:
   FindingScanner(Table table, TableProfile profile, FindingOptions options = {});
@@ -91,10 +99,8 @@ class FindingScanner {
   const std::vector<Finding>& result() const { return findings_; }
 
  private:
-  Table table_;
-  TableProfile profile_;
-  FindingOptions options_;
-  size_t next_detector_ = 0;
+  struct State;
+  std::unique_ptr<State> state_;
   std::vector<Finding> findings_;
 };
 

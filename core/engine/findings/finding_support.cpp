@@ -1,0 +1,273 @@
+#include "findings/finding_support.hpp"
+
+#include <algorithm>
+#include <set>
+
+#include "recipe.hpp"
+#include "steps/typed_support.hpp"
+#include "utf8.hpp"
+
+namespace tamis {
+
+const DistinctValue* ColumnValues::find(std::string_view value) const {
+  const auto it = index.find(value);
+  return it == index.end() ? nullptr : &values[it->second];
+}
+
+ColumnValues collect_values(const Column& column) {
+  ColumnValues out;
+  if (column.type() != Type::text) return out;
+  uint64_t row = 0;
+  for (size_t k = 0; k < column.chunk_count(); ++k) {
+    const ColumnChunk& chunk = column.chunk(k);
+    for (size_t i = 0; i < chunk.rows; ++i, ++row) {
+      if (chunk.is_null(i)) {
+        ++out.nulls;
+        continue;
+      }
+      ++out.non_null;
+      const std::string_view v = chunk.text(i);
+      const auto [it, added] = out.index.try_emplace(v, out.values.size());
+      if (added) out.values.push_back({v, 1, row});
+      else ++out.values[it->second].count;
+    }
+  }
+  return out;
+}
+
+const ColumnValues& DetectorContext::values(size_t column) {
+  if (cache_.size() < table.column_count()) cache_.resize(table.column_count());
+  if (!cache_[column]) cache_[column] = std::make_unique<ColumnValues>(collect_values(table.column(column)));
+  return *cache_[column];
+}
+
+std::vector<size_t> DetectorContext::text_columns() const {
+  std::vector<size_t> out;
+  for (size_t c = 0; c < table.column_count(); ++c) {
+    const Column& column = table.column(c);
+    if (column.type() != Type::text) continue;
+    bool any = false;
+    for (size_t k = 0; k < column.chunk_count() && !any; ++k) {
+      const ColumnChunk& chunk = column.chunk(k);
+      if (!chunk.has_nulls()) any = chunk.rows > 0;
+      else
+        for (size_t i = 0; i < chunk.rows && !any; ++i) any = !chunk.is_null(i);
+    }
+    if (any) out.push_back(c);
+  }
+  return out;
+}
+
+bool DetectorContext::add_fix(Finding& finding, nlohmann::ordered_json step, bool safe, std::string why_review,
+                              const StepList& first) {
+  auto preview = preview_step(table, first, step, options.examples);
+  if (!preview) {
+    finding.details.push_back("the suggested " + step.value("op", std::string("?")) +
+                              " step did not run: " + preview.error().to_string());
+    return false;
+  }
+  SuggestedFix fix;
+  fix.step = std::move(step);
+  fix.safe = safe;
+  if (!safe) fix.why_review = std::move(why_review);
+  fix.preview = std::move(*preview);
+  finding.fixes.push_back(std::move(fix));
+  return true;
+}
+
+StepList DetectorContext::earlier_fixes(const std::string& column,
+                                        std::initializer_list<std::string_view> kinds) const {
+  StepList out;
+  for (const Finding& f : findings) {
+    if (f.fixes.empty() || f.columns.size() != 1 || f.columns[0] != column) continue;
+    if (std::find(kinds.begin(), kinds.end(), f.kind) != kinds.end()) out.push_back(f.fixes.front().step);
+  }
+  return out;
+}
+
+namespace {
+
+Result<CompiledRecipe> compile_steps(const Schema& schema, const StepList& steps) {
+  Recipe recipe;
+  for (const auto& s : steps) {
+    const nlohmann::json definition = nlohmann::json::parse(s.dump());
+    recipe.steps.push_back({definition.value("op", std::string()), true, definition.value("note", std::string()),
+                            definition});
+  }
+  return compile_recipe(recipe, schema);
+}
+
+std::string row_text(const Table& table, size_t row) {
+  std::string out;
+  for (size_t c = 0; c < table.column_count(); ++c) {
+    if (c) out += " | ";
+    out += cell_text(table.column(c), row);
+  }
+  return out;
+}
+
+void removed_examples(const Table& base, const ChangeRecord& change, size_t limit, FixPreview& preview) {
+  std::vector<uint64_t> lines;
+  for (const RemovedRow& r : change.removed)
+    if (lines.size() < limit) lines.push_back(r.line);
+  std::set<uint64_t> wanted(lines.begin(), lines.end());
+  ColumnCursor cursor(base.source_lines());
+  for (size_t row = 0; row < base.row_count() && !wanted.empty(); ++row, cursor.next()) {
+    const auto line = static_cast<uint64_t>(cursor.number());
+    if (!wanted.erase(line)) continue;
+    FixExample e;
+    e.before = row_text(base, row);
+    e.removed = true;
+    e.source_line = line;
+    preview.examples.push_back(std::move(e));
+  }
+}
+
+void changed_examples(const Table& base, const Table& after, const ChangeRecord& change, size_t limit,
+                      FixPreview& preview) {
+  struct Pair {
+    std::string name;
+    const Column* before;
+    const Column* after;
+    ColumnCursor before_cursor, after_cursor;
+  };
+  std::vector<Pair> pairs;
+  for (const auto& [name, count] : change.cells_changed) {
+    if (count == 0) continue;
+    const auto b = base.find(name);
+    const auto a = after.find(name);
+    if (!b || !a) continue;
+    pairs.push_back({name, &base.column(*b), &after.column(*a), ColumnCursor(base.column(*b)),
+                     ColumnCursor(after.column(*a))});
+  }
+  if (pairs.empty() || base.row_count() != after.row_count()) return;
+  ColumnCursor lines(base.source_lines());
+  std::string before_text, after_text;
+  const auto text_at = [](const Column& column, const ColumnCursor& cursor, std::string& out) {
+    out.clear();
+    if (cursor.is_null()) out = "NULL";
+    else if (column.type() == Type::text) out.assign(cursor.text());
+    else append_canonical_value(column.type(), column.scale(), cursor.number(), out);
+  };
+  for (size_t row = 0; row < base.row_count() && preview.examples.size() < limit; ++row) {
+    for (Pair& p : pairs) {
+      const bool same_null = p.before_cursor.is_null() == p.after_cursor.is_null();
+      bool same = same_null && p.before_cursor.is_null();
+      if (same_null && !same) {
+        if (p.before->type() == Type::text && p.after->type() == Type::text) {
+          same = p.before_cursor.text() == p.after_cursor.text();
+        } else {
+          text_at(*p.before, p.before_cursor, before_text);
+          text_at(*p.after, p.after_cursor, after_text);
+          same = before_text == after_text;
+        }
+      }
+      if (!same && preview.examples.size() < limit) {
+        text_at(*p.before, p.before_cursor, before_text);
+        text_at(*p.after, p.after_cursor, after_text);
+        preview.examples.push_back({p.name, before_text, after_text, false, static_cast<uint64_t>(lines.number())});
+      }
+      p.before_cursor.next();
+      p.after_cursor.next();
+    }
+    lines.next();
+  }
+}
+
+}  // namespace
+
+Result<Table> apply_steps(const Table& table, const StepList& steps) {
+  if (steps.empty()) return table;
+  auto compiled = compile_steps(schema_of(table), steps);
+  if (!compiled) return compiled.take_error();
+  return apply_recipe(*compiled, table);
+}
+
+Result<FixPreview> preview_step(const Table& table, const StepList& first, const nlohmann::ordered_json& step,
+                                size_t examples) {
+  auto base = apply_steps(table, first);
+  if (!base) return base.take_error();
+  auto compiled = compile_steps(schema_of(*base), {step});
+  if (!compiled) return compiled.take_error();
+  std::vector<ChangeRecord> changes;
+  auto after = apply_recipe(*compiled, *base, &changes);
+  if (!after) return after.take_error();
+  FixPreview preview;
+  if (changes.empty()) return preview;
+  const ChangeRecord& change = changes.front();
+  preview.rows_removed = change.rows_removed + change.rows_rejected;
+  for (const auto& [name, count] : change.cells_changed) preview.cells_changed += count;
+  preview.warnings = change.conflicts;
+  preview.warnings.insert(preview.warnings.end(), change.warnings.begin(), change.warnings.end());
+  if (preview.rows_removed > 0) removed_examples(*base, change, examples, preview);
+  else changed_examples(*base, *after, change, examples, preview);
+  return preview;
+}
+
+std::string cell_text(const Column& column, size_t row) {
+  if (column.is_null(row)) return "NULL";
+  if (column.type() == Type::text) return std::string(column.text(row));
+  std::string out;
+  append_canonical_value(column.type(), column.scale(), column.number(row), out);
+  return out;
+}
+
+std::string sql_identifier(std::string_view name) {
+  std::string out = "\"";
+  for (const char ch : name) {
+    if (ch == '"') out += '"';
+    out += ch;
+  }
+  out += '"';
+  return out;
+}
+
+std::string sql_text(std::string_view value) {
+  std::string out = "'";
+  for (const char ch : value) {
+    if (ch == '\'') out += '\'';
+    out += ch;
+  }
+  out += '\'';
+  return out;
+}
+
+std::string shown_value(std::string_view value) {
+  std::string out = "\"";
+  size_t i = 0, n = 0;
+  while (i < value.size() && n < 40) {
+    const char32_t c = utf8::next(value, i);
+    if (c == '\n') out += "\\n";
+    else if (c == '\r') out += "\\r";
+    else if (c == '\t') out += "\\t";
+    else utf8::append(out, c);
+    ++n;
+  }
+  if (i < value.size()) out += "…";
+  out += '"';
+  return out;
+}
+
+std::string count_of(uint64_t n, std::string_view singular, std::string_view plural) {
+  std::string out = std::to_string(n);
+  out += ' ';
+  out += n == 1 ? singular : plural;
+  return out;
+}
+
+std::string_view trim_white_space(std::string_view v) {
+  size_t begin = 0, end = v.size();
+  while (begin < end) {
+    size_t i = begin;
+    if (!utf8::is_white_space(utf8::next(v, i))) break;
+    begin = i;
+  }
+  while (end > begin) {
+    size_t i = end;
+    if (!utf8::is_white_space(utf8::previous(v, i))) break;
+    end = i;
+  }
+  return v.substr(begin, end - begin);
+}
+
+}  // namespace tamis
