@@ -27,21 +27,6 @@ size_t sturges_bins(uint64_t n) {
   return std::min(kMaxBins, static_cast<size_t>(std::ceil(std::log2(static_cast<double>(n)))) + 1);
 }
 
-std::string_view trimmed(std::string_view v) {
-  size_t begin = 0, end = v.size();
-  while (begin < end) {
-    size_t i = begin;
-    if (!utf8::is_white_space(utf8::next(v, i))) break;
-    begin = i;
-  }
-  while (end > begin) {
-    size_t i = end;
-    if (!utf8::is_white_space(utf8::previous(v, i))) break;
-    end = i;
-  }
-  return v.substr(begin, end - begin);
-}
-
 // Profiling's reading of a date: a number is never a date, and the first
 // common format that takes the whole value wins.
 std::optional<int32_t> date_of(std::string_view t) {
@@ -70,7 +55,7 @@ void for_each_typed(const Column& column, Type type, const std::function<void(do
         visit(column.type() == Type::decimal ? v / divisor : v);
         continue;
       }
-      const std::string_view t = trimmed(chunk.text(i));
+      const std::string_view t = utf8::trim_white_space(chunk.text(i));
       if (t.empty()) continue;
       if (type == Type::date) {
         if (auto d = date_of(t)) visit(*d);
