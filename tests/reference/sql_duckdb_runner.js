@@ -13,8 +13,9 @@ async function main() {
     try {
       for (const statement of c.statements) await connection.run(statement);
       const reader = await connection.runAndReadAll(c.query);
-      // BIGINT arrives as a JavaScript BigInt, which JSON cannot hold: its decimal text.
-      const rows = reader.getRowsJS().map((row) => row.map((v) => (typeof v === 'bigint' ? v.toString() : v)));
+      // BIGINT arrives as a JavaScript BigInt, which JSON cannot hold: its decimal text;
+      // a DATE as a Date at UTC midnight: its ISO 8601 text.
+      const rows = reader.getRowsJS().map((row) => row.map((v) => (typeof v === 'bigint' ? v.toString() : v instanceof Date ? v.toISOString().slice(0, 10) : v)));
       results.push({ rows });
     } catch (e) {
       results.push({ error: String(e.message || e) });
