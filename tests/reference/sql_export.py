@@ -52,7 +52,9 @@ PIECES = ['Oak', 'oak', 'OAK', ' Oak', 'Oak ', '\u00a0Oak', 'Oak\t', 'Ash  Row',
           # dates for parse_date: leap days, impossible dates, two-digit years,
           # widths the scanner refuses, a trailing line break
           '2021-12-06', '2024-02-29', '2023-02-29', '2/29/2024', '12/31/99', '1/5/68', '1/5/2023', '2023-13-01',
-          '2021-1-5', '02021-01-05', '2021-12-06\n', '31.12.2020', '7.4.1999', '0999-01-02', '13/01/2024']
+          '2021-1-5', '02021-01-05', '2021-12-06\n', '31.12.2020', '7.4.1999', '0999-01-02', '13/01/2024',
+          # compatibility characters for NFKC: a ligature, a circled digit, a full-width sign, Hangul jamo
+          '\ufb01ne \u2460', '\uff04 5', '\u1100\u1161\u11a8']
 
 
 def messy_table(rng, rows):
@@ -85,6 +87,7 @@ def step_cases(rng):
         ('change_case upper', {'op': 'change_case', 'columns': some(), 'to': 'upper'}),
         ('change_case title', {'op': 'change_case', 'columns': some(), 'to': 'title'}),
         ('normalize_unicode NFC', {'op': 'normalize_unicode', 'columns': some(), 'form': 'NFC'}),
+        ('normalize_unicode NFKC', {'op': 'normalize_unicode', 'columns': some(), 'form': 'NFKC'}),
         ('replace_text literal', {'op': 'replace_text', 'columns': some(), 'find': rng.choice(['a', ',', "'", '\\', 'Oak']),
                                   'replace': rng.choice(['', '.', "''", 'Ö'])}),
         ('replace_text entire', {'op': 'replace_text', 'columns': some(), 'find': rng.choice(['Oak', '', 'N/A']),
@@ -134,6 +137,7 @@ def step_cases(rng):
 MUST_EXPORT = {
     'trim both': DIALECTS, 'trim leading': DIALECTS, 'trim trailing chars': DIALECTS,
     'collapse_spaces': ['duckdb', 'postgres', 'mysql'], 'normalize_unicode NFC': ['duckdb', 'postgres'],
+    'normalize_unicode NFKC': ['postgres'],
     'replace_text literal': DIALECTS, 'replace_text entire': DIALECTS, 'map_values': DIALECTS, 'to_null': DIALECTS,
     'deduplicate exact': DIALECTS, 'deduplicate trimmed': DIALECTS, 'fill_from_group': DIALECTS,
     'carry_forward': DIALECTS, 'require not_null': DIALECTS, 'require unique': DIALECTS, 'require in_set': DIALECTS,
