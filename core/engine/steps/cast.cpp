@@ -2,28 +2,14 @@
 
 #include "dates.hpp"
 #include "expr/numeric.hpp"
+#include "scalars.hpp"
 #include "sql/sql_step.hpp"
 #include "steps/typed_support.hpp"
+#include "utf8.hpp"
 
 namespace tamis {
 
 namespace {
-
-std::string_view trim_spaces(std::string_view s) {
-  while (!s.empty() && s.front() == ' ') s.remove_prefix(1);
-  while (!s.empty() && s.back() == ' ') s.remove_suffix(1);
-  return s;
-}
-
-bool same_word_ignoring_ascii_case(std::string_view a, std::string_view lower) {
-  if (a.size() != lower.size()) return false;
-  for (size_t i = 0; i < a.size(); ++i) {
-    char c = a[i];
-    if (c >= 'A' && c <= 'Z') c = static_cast<char>(c - 'A' + 'a');
-    if (c != lower[i]) return false;
-  }
-  return true;
-}
 
 bool is_number(Type t) { return t == Type::integer || t == Type::decimal; }
 
@@ -148,16 +134,16 @@ class Cast final : public Step {
                                                 ? Converted::value
                                                 : Converted::failed;
                                    case Type::date:
-                                     if (const auto days = iso.parse(trim_spaces(value))) {
+                                     if (const auto days = iso.parse(trim_ascii_spaces(value))) {
                                        out = *days;
                                        return Converted::value;
                                      }
                                      return Converted::failed;
                                    case Type::boolean: {
-                                     const std::string_view word = trim_spaces(value);
-                                     if (same_word_ignoring_ascii_case(word, "unknown")) return Converted::null;
-                                     out = same_word_ignoring_ascii_case(word, "true") ? 1 : 0;
-                                     return out || same_word_ignoring_ascii_case(word, "false") ? Converted::value
+                                     const std::string_view word = trim_ascii_spaces(value);
+                                     if (utf8::equals_ascii_ignoring_case(word, "unknown")) return Converted::null;
+                                     out = utf8::equals_ascii_ignoring_case(word, "true") ? 1 : 0;
+                                     return out || utf8::equals_ascii_ignoring_case(word, "false") ? Converted::value
                                                                                                : Converted::failed;
                                    }
                                    case Type::text: break;
