@@ -33,9 +33,14 @@ build_packages=(
 # locales holds glibc's CP1252 charmap (encodings reference), bzip2 unpacks
 # unicode-data's NormalizationTest.txt, python3-jsonschema checks recipes
 # against the schema, time measures peak memory in the benchmarks.
+# jellyfish and Levenshtein are the similar-values references, html5lib
+# parses the HTML reports; the SQL export runs on real PostgreSQL and MariaDB
+# servers (started and stopped by the test) and on the sqlite3 shell.
 test_packages=(
   icu-devtools emscripten clang-14 libclang-rt-14-dev
   python3 python3-numpy python3-pandas python3-jsonschema unicode-data bzip2 locales time dpkg-dev
+  python3-jellyfish python3-levenshtein python3-html5lib
+  postgresql-15 mariadb-server python3-psycopg2 python3-pymysql sqlite3
 )
 
 started_at=$EPOCHREALTIME
