@@ -5,7 +5,7 @@
 #include <unicode/uchar.h>
 
 #include <algorithm>
-#include <bit>
+#include <array>
 #include <cmath>
 #include <unordered_map>
 
@@ -30,6 +30,8 @@ constexpr MethodName kMethodNames[] = {
     {SimilarMethod::levenshtein, "levenshtein"}, {SimilarMethod::damerau_osa, "osa"},
     {SimilarMethod::jaro_winkler, "jaro_winkler"}, {SimilarMethod::soundex, "soundex"},
 };
+
+constexpr size_t kCharacterBuckets = 32;
 
 // Compares thresholds and similarities computed in floating point, so that
 // 1 - 3/20 still counts as reaching 0.85.
@@ -250,11 +252,25 @@ struct SimilarValueGrouper::State {
   std::unordered_map<uint64_t, std::vector<uint32_t>> blocks;
   std::vector<std::vector<std::pair<uint32_t, double>>> neighbours;
   std::vector<uint32_t> probed_by;  // form i + 1 that last met this form as a candidate
-  // Per form, kept apart from Form so that the filters before a distance
-  // touch a few compact arrays: length in code points, and the set of its
-  // characters hashed into 64 bits.
+  // Per form, kept apart from Form so that the filters before a similarity
+  // touch compact arrays: length in code points, and how many of its
+  // characters fall in each of 32 hash buckets (counts capped at 255).
   std::vector<uint32_t> length_of;
-  std::vector<uint64_t> characters_of;
+  std::vector<std::array<uint8_t, kCharacterBuckets>> characters_of;
+
+  // An upper bound of the characters two forms have in common (as
+  // multisets): characters in different buckets are different, so per bucket
+  // at most the smaller count can be shared.
+  size_t common_characters_bound(uint32_t i, uint32_t j) const {
+    const auto& a = characters_of[i];
+    const auto& b = characters_of[j];
+    size_t common = 0;
+    for (size_t k = 0; k < kCharacterBuckets; ++k) common += std::min(a[k], b[k]);
+    // A capped count hides characters: treat the bucket as unbounded.
+    for (size_t k = 0; k < kCharacterBuckets; ++k)
+      if (a[k] == 255 || b[k] == 255) return std::min(length_of[i], length_of[j]);
+    return common;
+  }
   std::vector<SimilarGroup> result;
   SimilarStats stats;
   std::vector<size_t> distance_rows;  // scratch for the edit distances
@@ -299,12 +315,12 @@ struct SimilarValueGrouper::State {
     return std::min(length + 2, length + 2 - static_cast<size_t>(needed) + 1);
   }
 
-  // Cheap filters that need no distance: the lengths, and for the edit
-  // distances the characters. Every character of one form that the other
-  // lacks costs at least one edit (a deletion or substitution removes one
-  // occurrence; a transposition removes none), and each bit set in one
-  // signature but not in the other stands for at least one such character,
-  // so the larger of the two bit counts is a lower bound of the distance.
+  // Cheap filters that need no distance: the lengths, and the characters the
+  // two forms can have in common (common_characters_bound). Every character
+  // of one form that is not matched in the other costs at least one edit
+  // (insertions, deletions and substitutions each fix one; a transposition
+  // changes no character count), so an edit distance is at least
+  // max(|a|, |b|) - common; and Jaro's matched characters m are at most common.
   bool may_reach_threshold(uint32_t i, uint32_t j) const {
     const double t = options.threshold;
     const size_t la = length_of[i], lb = length_of[j];
@@ -314,17 +330,23 @@ struct SimilarValueGrouper::State {
       case SimilarMethod::damerau_osa: {
         const auto bound = static_cast<size_t>(std::floor((1 - t) * static_cast<double>(longer) + kSlack));
         if (longer - shorter > bound) return false;
-        const uint64_t a = characters_of[i], b = characters_of[j];
-        const auto missing = static_cast<size_t>(std::max(std::popcount(a & ~b), std::popcount(b & ~a)));
-        return missing <= bound;
+        return longer - common_characters_bound(i, j) <= bound;
       }
       case SimilarMethod::qgram:
         // Dice >= t needs |B| >= t / (2 - t) |A| for the smaller gram set B.
         return static_cast<double>(shorter + 2) + kSlack >= t / (2 - t) * static_cast<double>(longer + 2);
-      case SimilarMethod::jaro_winkler:
-        // Jaro <= (2 + shorter/longer) / 3 and Jaro-Winkler <= 0.6 Jaro + 0.4,
-        // so reaching t needs shorter/longer >= 5t - 4.
-        return static_cast<double>(shorter) + kSlack >= (5 * t - 4) * static_cast<double>(longer);
+      case SimilarMethod::jaro_winkler: {
+        // Jaro <= (m/|a| + m/|b| + 1) / 3 with m <= common, and Jaro-Winkler,
+        // which grows with Jaro, is at most that bound plus the largest
+        // prefix bonus. (Forms are never empty: values without one are not
+        // grouped.)
+        const auto matches = static_cast<double>(common_characters_bound(i, j));
+        const double jaro = (matches / static_cast<double>(la) + matches / static_cast<double>(lb) + 1) / 3;
+        const double best = jaro > kJaroWinklerBoostThreshold
+                                ? jaro + static_cast<double>(kJaroWinklerMaxPrefix) * kJaroWinklerPrefixScale * (1 - jaro)
+                                : jaro;
+        return best + kSlack >= t;
+      }
       default: return false;
     }
   }
@@ -378,8 +400,11 @@ struct SimilarValueGrouper::State {
       Form& form = forms[cursor];
       form.points = code_points(form.text);
       length_of.push_back(static_cast<uint32_t>(form.points.size()));
-      uint64_t characters = 0;
-      for (const char32_t c : form.points) characters |= uint64_t{1} << ((c * 0x9E3779B1u) >> 26);
+      std::array<uint8_t, kCharacterBuckets> characters{};
+      for (const char32_t c : form.points) {
+        uint8_t& n = characters[(static_cast<uint32_t>(c) * 0x9E3779B1u) >> 27];
+        if (n < 255) ++n;
+      }
       characters_of.push_back(characters);
       std::vector<uint64_t> grams = padded_trigrams(form.points);
       // A multiset becomes a set by numbering repeated grams (occurrence k

@@ -41,9 +41,11 @@
 // and can miss pairs that only that trigram would have found (counted in
 // SimilarStats::block_overflows). Before a similarity is computed, a length
 // filter discards pairs whose lengths alone rule the threshold out; for the
-// edit distances a character filter also discards pairs in which one side
-// has more characters the other lacks than the distance allows (a lower
-// bound from 64-bit character signatures). Neither filter loses a pair.
+// edit distances and Jaro-Winkler a character filter discards pairs that
+// cannot have enough characters in common (an upper bound from per-form
+// counts of characters in 32 hash buckets): for an edit distance, each
+// unshared character costs an edit; for Jaro, m is at most the shared
+// characters. No filter loses a pair.
 // Edit distances are computed in a band of width 2 * bound + 1.
 //
 // Grouping: pairs at or above the threshold are clustered by the CENTER
