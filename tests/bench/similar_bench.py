@@ -33,101 +33,21 @@ The ratios use wall time of commands run one after the other.
 Usage: similar_bench.py --tamis BINARY --work DIR
 """
 import argparse
-import csv
 import json
+import os
 import random
 import resource
 import subprocess
+import sys
 import time
 
 import Levenshtein
 
-SEED = 4242
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "reference"))
+from planted_variants import SEED, generate, quality, write_data  # noqa: E402
+
 METHODS = [("token_key", None), ("soundex", None), ("levenshtein", 0.85), ("osa", 0.85),
            ("jaro_winkler", 0.85), ("qgram", 0.85)]
-SUFFIXES = ["Lane", "Street", "Road", "Park", "Green", "Close", "Way", "Hill", "Row", "Court", "Gardens",
-            "Walk", "Rise", "Square", "Terrace", "Meadow", "Yard", "Bank", "Quay", "Gate"]
-ACCENTED = {"a": "á", "e": "é", "i": "í", "o": "ö", "u": "ü"}
-
-
-def invented_word(rng):
-    onsets = ["b", "br", "c", "d", "dr", "f", "g", "gl", "h", "k", "l", "m", "n", "p", "qu", "r", "s", "st", "t",
-              "th", "v", "w", "z"]
-    vowels = ["a", "e", "i", "o", "u", "ai", "ea", "ou"]
-    codas = ["", "n", "r", "l", "th", "ck", "m", "s", "nd", "ll"]
-    word = "".join(rng.choice(onsets) + rng.choice(vowels) + rng.choice(codas) for _ in range(rng.randint(2, 3)))
-    return word.capitalize()
-
-
-def typo(rng, s):
-    letters = "abcdefghijklmnopqrstuvwxyz"
-    i = rng.randrange(1, len(s))
-    kind = rng.randrange(4)
-    if kind == 0:
-        return s[:i] + rng.choice(letters) + s[i + 1:]
-    if kind == 1:
-        return s[:i] + rng.choice(letters) + s[i:]
-    if kind == 2:
-        return s[:i] + s[i + 1:]
-    if i < len(s) - 1:
-        return s[:i] + s[i + 1] + s[i] + s[i + 2:]
-    return s + "e"
-
-
-def variant(rng, base):
-    kind = rng.randrange(7)
-    if kind == 0:
-        return base.upper()
-    if kind == 1:
-        return base.lower()
-    if kind == 2:
-        return base + "."
-    if kind == 3:
-        return base.replace(" ", "  ", 1)
-    if kind == 4:
-        vowels = [k for k, ch in enumerate(base) if ch in ACCENTED]
-        if vowels:
-            k = rng.choice(vowels)
-            return base[:k] + ACCENTED[base[k]] + base[k + 1:]
-    return typo(rng, base)
-
-
-def generate(distinct):
-    rng = random.Random(SEED)
-    bases, seen = [], set()
-    while len(bases) < distinct // 4:
-        name = invented_word(rng) + " " + rng.choice(SUFFIXES)
-        if name not in seen:
-            seen.add(name)
-            bases.append(name)
-    origin = {b: b for b in bases}
-    values = list(bases)
-    attempts = 0
-    while len(values) < distinct and attempts < distinct * 20:
-        attempts += 1
-        base = bases[rng.randrange(len(bases))]
-        v = variant(rng, base)
-        if v not in origin:
-            origin[v] = base
-            values.append(v)
-    counts = {v: (rng.randint(3, 12) if origin[v] == v else rng.randint(1, 2)) for v in values}
-    return values, origin, counts
-
-
-def write_data(path, values, counts):
-    rows = [v for v in values for _ in range(counts[v])]
-    random.Random(SEED + 1).shuffle(rows)
-    with open(path, "w", encoding="utf-8", newline="") as f:
-        w = csv.writer(f)
-        w.writerow(["place"])
-        for v in rows:
-            w.writerow([v])
-    with open(path + ".values", "w", encoding="utf-8") as f:
-        for v in rows:
-            f.write(v + "\n")
-    return len(rows)
-
-
 def timed(argv, stdout=subprocess.PIPE):
     """Wall seconds, CPU seconds (user + system of the child) and the result."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
@@ -137,17 +57,6 @@ def timed(argv, stdout=subprocess.PIPE):
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
     return wall, cpu, done
-
-
-def quality(report, origin):
-    suggested = correct = 0
-    for g in report["groups"]:
-        for m in g["members"][1:]:
-            suggested += 1
-            correct += origin.get(m["value"]) == origin.get(g["canonical"])
-    variants = sum(1 for v, b in origin.items() if v != b)
-    precision = correct / suggested if suggested else 1.0
-    return precision, correct / variants if variants else 1.0
 
 
 def main():
