@@ -176,21 +176,22 @@ int run_profile(const ProfileArgs& args) {
     Progress progress("profiling", 1000);
     while (!profiler.step(1 << 18)) progress.update(static_cast<uint64_t>(profiler.progress() * 1000));
   }
+  std::vector<Finding> findings;
+  // The page always shows the findings: they are what a reviewer reads first.
+  if (args.findings || !args.html.empty()) findings = scan_findings(*table, profiler.result(), FindingOptions{});
   if (!args.html.empty()) {
     ProfilePageInput page;
     page.file = display;
     page.read = &report;
     page.table = &*table;
     page.profile = &profiler.result();
-    page.findings_searched = false;
+    page.findings = findings;
     auto sink = open_file_sink(args.html);
     if (!sink) return report_error(sink.error());
     if (Status s = (*sink)->write(profile_html(page)); !s) return report_error(s.error());
     if (Status s = (*sink)->commit(); !s) return report_error(s.error());
     if (args.html == "-") return 0;
   }
-  std::vector<Finding> findings;
-  if (args.findings) findings = scan_findings(*table, profiler.result(), FindingOptions{});
   if (args.json) {
     auto doc = to_json(display, report, profiler.result());
     if (args.findings) doc["findings"] = findings_json(findings);

@@ -247,6 +247,24 @@ if doc is not None and profile is not None:
                         "profile page: %s of %r is %d by Python's csv module" % (fact, name, value),
                         "page says %r" % facts.get(fact))
 
+    # The findings: the same list, in the same order, as `profile --findings --json`.
+    code, with_findings, err = reflib.run_profile(binary, [demo_csv, "--findings"])
+    expected = (with_findings or {}).get("findings", [])
+    tally.check(code == 0 and expected, "profile --findings --json lists findings for the demo", err)
+    cards = [e for e in sections["findings"].iter("section") if e.get("id", "").startswith("finding-")]
+    tally.check(len(cards) == len(expected), "profile page: one card per finding",
+                "%d cards, %d findings" % (len(cards), len(expected)))
+    for card, finding in zip(cards, expected):
+        heading = text_of(card.find("h3"))
+        tally.check(finding["title"] in heading and finding["kind"] in heading,
+                    "profile page: finding %r titled as in the JSON" % finding["title"], heading)
+        m = re.search(r"rows affected: ([\d\u202f]+)", text_of(card))
+        tally.check(m is not None and number_in(m.group(1)) == finding["rows_affected"],
+                    "profile page: finding %r affects %d rows" % (finding["title"], finding["rows_affected"]))
+        steps = [json.loads(text_of(pre)) for pre in card.iter("pre") if pre.get("class") == "step"]
+        tally.check(steps == [fix["step"] for fix in finding["fixes"]],
+                    "profile page: finding %r shows its fix steps as recipe JSON" % finding["title"])
+
 # ---- the run page of the demo recipe --------------------------------------
 run_html, run_json, out_csv = path("run.html"), path("run.json"), path("out.csv")
 code, _, err = reflib.run_tamis(binary, ["run", demo_recipe, demo_csv, "-o", out_csv, "--report", run_json,
