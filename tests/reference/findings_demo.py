@@ -136,6 +136,18 @@ for column in columns:
         tally.check(found[0]["fixes"][0]["safe"] and found[0]["fixes"][0]["step"]["op"] == "to_null",
                     "%s: to_null is offered as a safe fix" % column)
 
+# ------------------------------------------------- variant spellings
+# Every injected typo, accent variant and decomposed (NFD) spelling is a
+# non-canonical member of a similar_values set, so the finding's rows are at
+# least their count (case variants and trailing dots may join the same sets).
+for column in ("district", "species"):
+    found = find("similar_values", column)
+    injected = sum(manifest_count(kind, column) for kind in ("typo", "accent_variant", "unicode_decomposed"))
+    rows = found[0]["rows_affected"] if found else 0
+    tally.check(rows >= injected, "%s: variant spellings cover the injected typos and accent variants" % column,
+                (rows, injected))
+    print("%s: similar_values rows %d, injected typos/accents/NFD %d" % (column, rows, injected))
+
 # ------------------------------------------------------------ dates
 dates = one("dates_as_text", "planted_on")
 if dates:

@@ -229,6 +229,26 @@ TEST_CASE("unit_findings: letter-case variants map to the most frequent spelling
   }
 }
 
+TEST_CASE("unit_findings: variant spellings by similarity but not in number or date columns") {
+  std::string csv = "district,planted_on\n";
+  const char* rows[][2] = {{"Fenmoor", "2023-01-05"},        {"Fenmoor", "2023-01-06"},
+                           {"Fenmoor", "2023-01-07"},        {"Fenmor", "2023-01-05"},
+                           {"Rivi\xC3\xA8re Quay", "2023-01-06"}, {"Rivi\xC3\xA8re Quay", "2023-01-07"},
+                           {"Riviere Quay", "2023-01-05"},   {"Saltpan", "2023-01-06"},
+                           {"Saltpan", "2023-01-07"},        {"Saltpan", "2023-01-05"}};
+  for (const auto& r : rows) csv += std::string(r[0]) + "," + r[1] + "\n";
+  const auto findings = findings_of(table_of(csv));
+  const Finding& f = only(findings, "similar_values");
+  CHECK(f.columns == std::vector<std::string>{"district"});
+  CHECK(f.rows_affected == 2);
+  REQUIRE(!f.fixes.empty());
+  CHECK(f.fixes[0].step["op"] == "map_values");
+  CHECK(f.fixes[0].step["map"]["Fenmor"] == "Fenmoor");  // one edit in seven letters: 6/7 >= 0.85
+  CHECK(f.fixes[0].step["map"]["Riviere Quay"] == "Rivi\xC3\xA8re Quay");  // equal once accents are stripped
+  CHECK_FALSE(f.fixes[0].safe);
+  CHECK(f.fixes[0].preview.cells_changed == 2);
+}
+
 TEST_CASE("unit_findings: dates in several formats, a value that fits none, inferred month/day order") {
   const Table t = table_of(
       "planted_on\n"

@@ -3,6 +3,7 @@
 #include <algorithm>
 
 #include "findings/detectors.hpp"
+#include "findings/similar_values.hpp"
 
 namespace tamis {
 
@@ -33,6 +34,8 @@ constexpr Detector kDetectors[] = {
      detect_trailing_punctuation, View::tidy},
     {{"case_variants", "category values that differ from another value only in letter case"}, detect_case_variants,
      View::tidy},
+    {{"similar_values", "values that are probably variant spellings of another value (typos, accents, spacing)"},
+     detect_similar_values, View::tidy},
     {{"decimal_comma", "numbers written with a decimal comma in a column that mostly uses a decimal point"},
      detect_decimal_comma, View::tidy},
     {{"numbers_as_text", "numbers written with thousands separators, currency signs or percent signs"},
