@@ -34,12 +34,13 @@ build_packages=(
 # unicode-data's NormalizationTest.txt, python3-jsonschema checks recipes
 # against the schema, time measures peak memory in the benchmarks.
 # jellyfish and Levenshtein are the similar-values references, html5lib
-# parses the HTML reports; the SQL export runs on real PostgreSQL and MariaDB
-# servers (started and stopped by the test) and on the sqlite3 shell.
+# parses the HTML reports and headless chromium opens them; the SQL export
+# runs on real PostgreSQL and MariaDB servers (started and stopped by the
+# test) and on the sqlite3 shell.
 test_packages=(
   icu-devtools emscripten clang-14 libclang-rt-14-dev
   python3 python3-numpy python3-pandas python3-jsonschema unicode-data bzip2 locales time dpkg-dev
-  python3-jellyfish python3-levenshtein python3-html5lib
+  python3-jellyfish python3-levenshtein python3-html5lib chromium
   postgresql-15 mariadb-server python3-psycopg2 python3-pymysql sqlite3
 )
 
