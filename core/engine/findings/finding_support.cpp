@@ -255,19 +255,4 @@ std::string count_of(uint64_t n, std::string_view singular, std::string_view plu
   return out;
 }
 
-std::string_view trim_white_space(std::string_view v) {
-  size_t begin = 0, end = v.size();
-  while (begin < end) {
-    size_t i = begin;
-    if (!utf8::is_white_space(utf8::next(v, i))) break;
-    begin = i;
-  }
-  while (end > begin) {
-    size_t i = end;
-    if (!utf8::is_white_space(utf8::previous(v, i))) break;
-    end = i;
-  }
-  return v.substr(begin, end - begin);
-}
-
 }  // namespace tamis

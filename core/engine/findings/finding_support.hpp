@@ -79,7 +79,5 @@ std::string sql_text(std::string_view value);
 std::string shown_value(std::string_view value);
 // "3 rows" / "1 row".
 std::string count_of(uint64_t n, std::string_view singular, std::string_view plural);
-// White space at both ends removed (Unicode White_Space).
-std::string_view trim_white_space(std::string_view value);
 
 }  // namespace tamis

@@ -10,7 +10,7 @@ namespace {
 // True when a run of white space between two other characters is longer than
 // one character or is not U+0020.
 bool has_odd_inner_space(std::string_view value) {
-  const std::string_view core = trim_white_space(value);
+  const std::string_view core = utf8::trim_white_space(value);
   size_t i = 0;
   size_t run = 0;
   bool odd = false;
@@ -36,7 +36,7 @@ void detect_inner_white_space(DetectorContext& ctx) {
     for (const DistinctValue& v : ctx.values(c).values) {
       if (!has_odd_inner_space(v.value)) continue;
       rows += v.count;
-      const std::string_view core = trim_white_space(v.value);
+      const std::string_view core = utf8::trim_white_space(v.value);
       if (core.find_first_of("\r\n") != std::string_view::npos) line_breaks += v.count;
     }
     if (rows == 0) continue;

@@ -11,7 +11,7 @@ namespace tamis {
 
 void detect_missing_as_text(DetectorContext& ctx) {
   std::set<std::string> folded_sentinels;
-  for (const std::string& s : ctx.options.sentinels) folded_sentinels.insert(fold_case(trim_white_space(s)));
+  for (const std::string& s : ctx.options.sentinels) folded_sentinels.insert(fold_case(utf8::trim_white_space(s)));
   for (const size_t c : ctx.text_columns()) {
     uint64_t blanks = 0, sentinels = 0;
     std::vector<std::string> spellings;
@@ -19,7 +19,7 @@ void detect_missing_as_text(DetectorContext& ctx) {
     for (const DistinctValue& v : ctx.values(c).values) {
       if (utf8::is_blank(v.value)) {
         blanks += v.count;
-      } else if (v.value.size() <= 64 && folded_sentinels.count(fold_case(trim_white_space(v.value)))) {
+      } else if (v.value.size() <= 64 && folded_sentinels.count(fold_case(utf8::trim_white_space(v.value)))) {
         sentinels += v.count;
         spellings.emplace_back(v.value);
         per_spelling[std::string(v.value)] = v.count;
