@@ -8,10 +8,11 @@
 // fewer conflicting groups. The column is first given the variant fixes
 // earlier findings suggest for it (inner spaces, case, punctuation, similar spellings),
 // since a stray "Fenmor" makes a group look like a conflict.
-#include <map>
+#include <algorithm>
 #include <unordered_map>
 
 #include "findings/detectors.hpp"
+#include "steps/typed_support.hpp"
 
 namespace tamis {
 
@@ -28,29 +29,72 @@ struct KeyScore {
   double agreement = 0;
 };
 
-KeyScore score(const Table& table, size_t column, size_t key) {
+// A text column as dense value ids, row by row: 0 for NULL, 1.. for each
+// distinct text, so that grouping compares integers instead of strings.
+struct ValueIds {
+  std::vector<uint32_t> ids;
+  uint32_t distinct = 0;
+};
+
+ValueIds value_ids(const Table& table, size_t column) {
+  ValueIds out;
+  out.ids.reserve(table.row_count());
+  std::unordered_map<std::string_view, uint32_t> seen;
+  ColumnCursor cursor(table.column(column));
+  for (size_t row = 0; row < table.row_count(); ++row, cursor.next()) {
+    if (cursor.is_null()) {
+      out.ids.push_back(0);
+      continue;
+    }
+    const auto [it, fresh] = seen.try_emplace(cursor.text(), static_cast<uint32_t>(seen.size() + 1));
+    out.ids.push_back(it->second);
+  }
+  out.distinct = static_cast<uint32_t>(seen.size());
+  return out;
+}
+
+KeyScore score(const ValueIds& keys, const ValueIds& target, size_t key) {
   struct Group {
-    std::map<std::string_view, uint64_t> values;
+    uint32_t first = 0;  // the first non-NULL value id seen
+    bool several = false;
     uint64_t nulls = 0;
   };
-  std::unordered_map<std::string_view, Group> groups;
-  const Column& target = table.column(column);
-  const Column& keys = table.column(key);
-  for (size_t row = 0; row < table.row_count(); ++row) {
-    if (keys.is_null(row)) continue;
-    Group& g = groups[keys.text(row)];
-    if (target.is_null(row)) ++g.nulls;
-    else ++g.values[target.text(row)];
+  std::vector<Group> groups(keys.distinct + 1);
+  std::vector<uint64_t> pairs;  // (group << 32 | value) of the non-NULL values, for the agreement share
+  pairs.reserve(keys.ids.size());
+  for (size_t row = 0; row < keys.ids.size(); ++row) {
+    const uint32_t k = keys.ids[row], v = target.ids[row];
+    if (k == 0) continue;
+    Group& g = groups[k];
+    if (v == 0) {
+      ++g.nulls;
+      continue;
+    }
+    if (g.first == 0) g.first = v;
+    else g.several |= g.first != v;
+    pairs.push_back(uint64_t{k} << 32 | v);
   }
   KeyScore s;
   s.key = key;
+  for (const Group& g : groups) {
+    if (g.first != 0 && !g.several) s.fillable += g.nulls;
+    if (g.several && g.nulls > 0) ++s.conflicting, s.conflict_nulls += g.nulls;
+  }
+  if (s.fillable == 0) return s;
+  // Per group: the rows with a value and the count of its most frequent value.
+  std::sort(pairs.begin(), pairs.end());
   uint64_t agreeing = 0, compared = 0;
-  for (const auto& [k, g] : groups) {
+  for (size_t i = 0; i < pairs.size();) {
+    const uint64_t group = pairs[i] >> 32;
     uint64_t total = 0, top = 0;
-    for (const auto& [v, n] : g.values) total += n, top = std::max(top, n);
+    while (i < pairs.size() && pairs[i] >> 32 == group) {
+      size_t j = i;
+      while (j < pairs.size() && pairs[j] == pairs[i]) ++j;
+      total += j - i;
+      top = std::max<uint64_t>(top, j - i);
+      i = j;
+    }
     if (total >= 2) agreeing += top, compared += total;
-    if (g.values.size() == 1) s.fillable += g.nulls;
-    if (g.values.size() > 1 && g.nulls > 0) ++s.conflicting, s.conflict_nulls += g.nulls;
   }
   s.agreement = compared == 0 ? 0 : static_cast<double>(agreeing) / static_cast<double>(compared);
   return s;
@@ -60,18 +104,22 @@ KeyScore score(const Table& table, size_t column, size_t key) {
 
 void detect_fillable_nulls(DetectorContext& ctx) {
   const std::vector<size_t> text = ctx.text_columns();
+  std::unordered_map<size_t, ValueIds> key_ids;  // keys are read from the table as it is; only c gets fixes
   for (const size_t c : text) {
     if (ctx.values(c).nulls == 0) continue;
     const std::string& name = ctx.table.name(c);
     const StepList first = ctx.earlier_fixes(name, {"inner_white_space", "trailing_punctuation", "case_variants", "similar_values"});
     auto base = apply_steps(ctx.table, first);
     if (!base) continue;
+    const ValueIds target = value_ids(*base, c);
     std::optional<KeyScore> best;
     for (const size_t k : text) {
       if (k == c) continue;
       const ColumnValues& key_values = ctx.values(k);
       if (key_values.values.size() < 2 || key_values.values.size() * kMinGroupSize > key_values.non_null) continue;
-      const KeyScore s = score(*base, c, k);
+      auto ids = key_ids.find(k);
+      if (ids == key_ids.end()) ids = key_ids.emplace(k, value_ids(ctx.table, k)).first;
+      const KeyScore s = score(ids->second, target, k);
       if (s.fillable == 0 || s.agreement < kAgreement) continue;
       if (!best || s.fillable > best->fillable || (s.fillable == best->fillable && s.conflicting < best->conflicting))
         best = s;
