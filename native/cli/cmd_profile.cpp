@@ -7,7 +7,6 @@
 
 #include "commands.hpp"
 #include "profile.hpp"
-#include "progress.hpp"
 #include "report/profile_html.hpp"
 #include "run_support.hpp"
 #include "utf8.hpp"
@@ -159,32 +158,21 @@ int run_profile(const ProfileArgs& args) {
     return report_error(usage_error("--json and --html - both want standard output: give --html a file name"));
   if (!args.html.empty() && args.html != "-" && same_file(args.input, args.html))
     return report_error(usage_error("'" + args.html + "' is the input; tamis never overwrites what it reads"));
-  auto source = open_file_source(args.input);
-  if (!source) return report_error(source.error());
-  const std::string display = args.input == "-" ? "<stdin>" : args.input;
-  const std::optional<uint64_t> total = (*source)->size();
   ReadReport report;
-  Result<Table> table = [&] {
-    Progress progress("reading", total);
-    return read_csv(std::move(*source), display, *options, &report, {},
-                    [&](uint64_t done, std::optional<uint64_t>) { progress.update(done); });
-  }();
+  std::string display;
+  Result<Table> table = read_whole_file(args.input, *options, report, display);
   if (!table) return report_error(table.error());
   if (std::getenv("TAMIS_STATS")) std::cerr << "memory: table " << table->memory_bytes() << " bytes\n";
-  TableProfiler profiler(*table);
-  {
-    Progress progress("profiling", 1000);
-    while (!profiler.step(1 << 18)) progress.update(static_cast<uint64_t>(profiler.progress() * 1000));
-  }
+  const TableProfile profile = profile_with_progress(*table);
   std::vector<Finding> findings;
   // The page always shows the findings: they are what a reviewer reads first.
-  if (args.findings || !args.html.empty()) findings = scan_findings(*table, profiler.result(), FindingOptions{});
+  if (args.findings || !args.html.empty()) findings = scan_findings(*table, profile, FindingOptions{});
   if (!args.html.empty()) {
     ProfilePageInput page;
     page.file = display;
     page.read = &report;
     page.table = &*table;
-    page.profile = &profiler.result();
+    page.profile = &profile;
     page.findings = findings;
     auto sink = open_file_sink(args.html);
     if (!sink) return report_error(sink.error());
@@ -193,11 +181,11 @@ int run_profile(const ProfileArgs& args) {
     if (args.html == "-") return 0;
   }
   if (args.json) {
-    auto doc = to_json(display, report, profiler.result());
+    auto doc = to_json(display, report, profile);
     if (args.findings) doc["findings"] = findings_json(findings);
     std::cout << doc.dump(2) << '\n';
   } else {
-    print_readable(display, report, profiler.result());
+    print_readable(display, report, profile);
     if (args.findings) print_findings(std::cout, findings);
   }
   return 0;

@@ -166,16 +166,9 @@ int run_similar(const SimilarArgs& args) {
   auto csv = args.reading.to_csv_options();
   if (!csv) return report_error(csv.error());
   csv->lenient = true;
-  auto source = open_file_source(args.input);
-  if (!source) return report_error(source.error());
-  const std::string display = args.input == "-" ? "<stdin>" : args.input;
-  const std::optional<uint64_t> total = (*source)->size();
   ReadReport report;
-  Result<Table> table = [&] {
-    Progress progress("reading", total);
-    return read_csv(std::move(*source), display, *csv, &report, {},
-                    [&](uint64_t done, std::optional<uint64_t>) { progress.update(done); });
-  }();
+  std::string display;
+  Result<Table> table = read_whole_file(args.input, *csv, report, display);
   if (!table) return report_error(table.error());
   const std::optional<size_t> column = table->find(args.column);
   if (!column) {

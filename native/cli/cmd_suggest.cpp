@@ -125,26 +125,15 @@ int run_suggest(const SuggestArgs& args) {
   options->lenient = !args.strict;
   if (args.output != "-" && same_file(args.input, args.output))
     return report_error(usage_error("'" + args.output + "' is the input; tamis never overwrites what it reads"));
-  auto source = open_file_source(args.input);
-  if (!source) return report_error(source.error());
-  const std::string display = args.input == "-" ? "<stdin>" : args.input;
-  const std::optional<uint64_t> total = (*source)->size();
   ReadReport report;
-  Result<Table> table = [&] {
-    Progress progress("reading", total);
-    return read_csv(std::move(*source), display, *options, &report, {},
-                    [&](uint64_t done, std::optional<uint64_t>) { progress.update(done); });
-  }();
+  std::string display;
+  Result<Table> table = read_whole_file(args.input, *options, report, display);
   if (!table) return report_error(table.error());
   for (const std::string& w : report.warnings()) std::cerr << "tamis: warning: " << w << '\n';
-  TableProfiler profiler(*table);
-  {
-    Progress progress("profiling", 1000);
-    while (!profiler.step(1 << 18)) progress.update(static_cast<uint64_t>(profiler.progress() * 1000));
-  }
+  const TableProfile profile = profile_with_progress(*table);
   FindingOptions finding_options;
   if (!args.sentinels.empty()) finding_options.sentinels = args.sentinels;
-  const std::vector<Finding> findings = scan_findings(*table, profiler.result(), finding_options);
+  const std::vector<Finding> findings = scan_findings(*table, profile, finding_options);
 
   nlohmann::ordered_json doc;
   doc["tamis_recipe"] = 1;

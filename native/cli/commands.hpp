@@ -8,6 +8,7 @@
 
 #include "csv_reader.hpp"
 #include "findings/findings.hpp"
+#include "profile.hpp"
 
 namespace tamis::cli {
 
@@ -22,6 +23,13 @@ struct ReadingOptions {
   void add_to(CLI::App& command);
   Result<CsvOptions> to_csv_options() const;
 };
+
+// Reads a whole CSV/TSV file ('-' = standard input) into one table, with a
+// progress bar on a terminal; `display` gets the name used in messages.
+Result<Table> read_whole_file(const std::string& input, const CsvOptions& options, ReadReport& report,
+                              std::string& display);
+// Profiles a table in slices, with a progress bar on a terminal.
+TableProfile profile_with_progress(const Table& table);
 
 struct ConvertArgs {
   std::string input;

@@ -2,6 +2,8 @@
 
 #include <iostream>
 
+#include "progress.hpp"
+
 namespace tamis::cli {
 
 void ReadingOptions::add_to(CLI::App& command) {
@@ -47,6 +49,23 @@ Result<CsvOptions> ReadingOptions::to_csv_options() const {
 int report_error(const Error& error) {
   std::cerr << "tamis: " << error.to_string() << '\n';
   return exit_code(error.kind);
+}
+
+Result<Table> read_whole_file(const std::string& input, const CsvOptions& options, ReadReport& report,
+                              std::string& display) {
+  auto source = open_file_source(input);
+  if (!source) return source.take_error();
+  display = input == "-" ? "<stdin>" : input;
+  Progress progress("reading", (*source)->size());
+  return read_csv(std::move(*source), display, options, &report, {},
+                  [&](uint64_t done, std::optional<uint64_t>) { progress.update(done); });
+}
+
+TableProfile profile_with_progress(const Table& table) {
+  TableProfiler profiler(table);
+  Progress progress("profiling", 1000);
+  while (!profiler.step(1 << 18)) progress.update(static_cast<uint64_t>(profiler.progress() * 1000));
+  return profiler.result();
 }
 
 }  // namespace tamis::cli
