@@ -1,10 +1,39 @@
 // tamis: the batch side of the cleaning workbench.
+#include <algorithm>
 #include <iostream>
+#include <memory>
+#include <sstream>
 #ifdef __GLIBC__
 #include <malloc.h>
 #endif
 
 #include "commands.hpp"
+
+namespace {
+
+// `tamis --help` lists each command with the first clause of its
+// description (up to '.', ':', ';' or a parenthesis, at most about one
+// line); `tamis COMMAND --help` shows the whole of it.
+class OverviewFormatter : public CLI::Formatter {
+ public:
+  std::string make_subcommand(const CLI::App* sub) const override {
+    constexpr size_t kLine = 100;
+    std::string summary = sub->get_description();
+    for (char& c : summary)
+      if (c == '\n') c = ' ';
+    const size_t stop = std::min(summary.find_first_of(".:;"), summary.find(" ("));
+    if (stop != std::string::npos) summary.resize(stop);
+    if (summary.size() > kLine) {
+      const size_t comma = summary.rfind(", ", kLine);
+      summary.resize(comma == std::string::npos ? kLine : comma);
+    }
+    std::stringstream out;
+    CLI::detail::format_help(out, sub->get_display_name(true), summary, get_column_width());
+    return out.str();
+  }
+};
+
+}  // namespace
 
 int main(int argc, char** argv) {
   using namespace tamis::cli;
@@ -38,6 +67,7 @@ int main(int argc, char** argv) {
   CLI::App* similar = add_similar_command(app, similar_args);
   SqlArgs sql_args;
   CLI::App* sql = add_sql_command(app, sql_args);
+  app.formatter(std::make_shared<OverviewFormatter>());
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
