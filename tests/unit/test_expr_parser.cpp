@@ -191,6 +191,7 @@ TEST_CASE("unit_expr parser: CASE, CAST and function syntax") {
   CHECK(parse_error("UPPER('a'") == "at character 10: expected ')', found the end of the expression");
   CHECK(parse_error("SUBSTRING('abc' 1)") == "at character 17: expected FROM or ',', found '1'");
   CHECK(parse_error("SUBSTRING('abc', 1, 2, 3)") == "at character 24: SUBSTRING takes a value, a start and a length");
+  CHECK(parse_error("SUBSTRING('abc' ,)") == "at character 18: expected SUBSTRING's start, found ')'");
   CHECK(parse_error("TRIM(LEADING 'x')") == "at character 17: expected FROM, found ')'");
   CHECK(parse_error("TRIM('x' FROM 'y'") == "at character 18: expected ')', found the end of the expression");
   CHECK(parse_error("'a' LIKE 'b' ESCAPE 'xy'") == "at character 21: ESCAPE needs exactly one character, found 'xy'");

@@ -871,6 +871,8 @@ class Parser {
     } else if (at_symbol(",")) {
       take();
       if (!arguments(args)) return kFailed;
+      // Found by the expression fuzzer: "SUBSTRING(site ,)" has no start.
+      if (args.size() < 2) return expected("SUBSTRING's start");
       if (args.size() > 3) return fail_node(args[3], "SUBSTRING takes a value, a start and a length");
     } else {
       return expected("FROM or ','");
