@@ -192,6 +192,21 @@ TEST_CASE("unit_expr parser: CASE, CAST and function syntax") {
   CHECK(parse_error("SUBSTRING('abc' 1)") == "at character 17: expected FROM or ',', found '1'");
   CHECK(parse_error("SUBSTRING('abc', 1, 2, 3)") == "at character 24: SUBSTRING takes a value, a start and a length");
   CHECK(parse_error("SUBSTRING('abc' ,)") == "at character 18: expected SUBSTRING's start, found ')'");
+  // Found by the expression fuzzer: deep nesting overflowed the stack.
+  const std::string too_deep = "the expression nests too deeply (more than 100 levels); split it into several steps";
+  CHECK(parse_error(std::string(5000, '(') + "1") == "at character 101: " + too_deep);
+  std::string negations;
+  for (int i = 0; i < 3000; ++i) negations += "NOT ";
+  CHECK(parse_error(negations + "TRUE").find(too_deep) != std::string::npos);
+  std::string signs;  // "- " each: "--" would start a comment
+  for (int i = 0; i < 3000; ++i) signs += "- ";
+  CHECK(parse_error(signs + "1").find(too_deep) != std::string::npos);
+  std::string chain = "1";
+  for (int i = 0; i < 2000; ++i) chain += " + 1";
+  CHECK(parse_error(chain).find(too_deep) != std::string::npos);
+  std::string fine = "1";
+  for (int i = 0; i < 90; ++i) fine += " + 1";
+  CHECK(parse_error(std::string(90, '(') + fine + std::string(90, ')')) == "");
   CHECK(parse_error("TRIM(LEADING 'x')") == "at character 17: expected FROM, found ')'");
   CHECK(parse_error("TRIM('x' FROM 'y'") == "at character 18: expected ')', found the end of the expression");
   CHECK(parse_error("'a' LIKE 'b' ESCAPE 'xy'") == "at character 21: ESCAPE needs exactly one character, found 'xy'");

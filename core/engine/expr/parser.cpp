@@ -146,8 +146,26 @@ class Parser {
 
   // ---- nodes ----
   Node& node(uint32_t id) { return p_.nodes[id]; }
+  // Deeply nested input must be an error, not a stack overflow in the
+  // parser or in the recursive passes over the tree (the expression fuzzer
+  // found both): the grammar's recursion and the tree's depth are capped.
+  static constexpr size_t kMaxDepth = 100;
+  uint32_t too_deep(uint32_t begin) {
+    return fail_at_offset(begin, "the expression nests too deeply (more than " + std::to_string(kMaxDepth) +
+                                     " levels); split it into several steps");
+  }
+  struct Nesting {
+    explicit Nesting(size_t& depth) : depth_(++depth) {}
+    ~Nesting() { --depth_; }
+    size_t& depth_;
+  };
+
   uint32_t add(Node n) {
+    size_t depth = 1;
+    for (const uint32_t a : n.args) depth = std::max<size_t>(depth, tree_depth_[a] + 1);
+    if (depth > kMaxDepth) return too_deep(n.begin);
     p_.nodes.push_back(std::move(n));
+    tree_depth_.push_back(depth);
     return static_cast<uint32_t>(p_.nodes.size() - 1);
   }
   Node make(Op op, uint32_t begin, std::vector<uint32_t> args = {}) {
@@ -254,6 +272,8 @@ class Parser {
 
   // ---- grammar ----
   uint32_t parse_or() {
+    if (nesting_ >= kMaxDepth) return too_deep(peek().begin);
+    const Nesting level(nesting_);
     uint32_t left = parse_and();
     while (left != kFailed && at_word("OR")) {
       take();
@@ -284,6 +304,8 @@ class Parser {
 
   uint32_t parse_not() {
     if (!at_word("NOT")) return parse_is();
+    if (nesting_ >= kMaxDepth) return too_deep(peek().begin);
+    const Nesting level(nesting_);
     const Token op = take();
     const uint32_t operand = parse_not();
     if (operand == kFailed || !require(operand, VType::boolean, "NOT")) return kFailed;
@@ -476,6 +498,8 @@ class Parser {
 
   uint32_t parse_unary() {
     if (!at_symbol("-") && !at_symbol("+")) return parse_primary();
+    if (nesting_ >= kMaxDepth) return too_deep(peek().begin);
+    const Nesting level(nesting_);
     const Token op = take();
     const uint32_t operand = parse_unary();
     if (operand == kFailed || !require_numeric(operand, "unary '" + op.value + "'")) return kFailed;
@@ -890,6 +914,8 @@ class Parser {
   std::vector<Token> tokens_;
   size_t at_ = 0;
   std::optional<Error> error_;
+  size_t nesting_ = 0;               // grammar levels now open
+  std::vector<size_t> tree_depth_;  // per node, parallel to p_.nodes
 };
 
 }  // namespace
