@@ -181,6 +181,12 @@ class Evaluator {
   Status eval_child(uint32_t id, size_t k, const uint8_t* active, bool values = true) {
     return eval(p_.nodes[id].args[k], active, values);
   }
+  // Every argument of a node whose arguments are all needed (LIKE, SUBSTRING, TRIM).
+  Status eval_children(uint32_t id, const uint8_t* active) {
+    for (size_t k = 0; k < p_.nodes[id].args.size(); ++k)
+      if (Status s = eval_child(id, k, active); !s) return s;
+    return Ok{};
+  }
 
   // ---- the dispatch ----
   Status eval(uint32_t id, const uint8_t* active, bool values) {
@@ -514,8 +520,7 @@ class Evaluator {
 
   Status like(uint32_t id, Vec& out, const uint8_t* active) {
     const Node& node = p_.nodes[id];
-    for (size_t k = 0; k < node.args.size(); ++k)
-      if (Status s = eval_child(id, k, active); !s) return s;
+    if (Status s = eval_children(id, active); !s) return s;
     const Vec& value = child(id, 0);
     const Vec& pattern = child(id, 1);
     const Vec* escape = node.args.size() == 3 ? &child(id, 2) : nullptr;
@@ -672,8 +677,7 @@ class Evaluator {
 
   Status substring_op(uint32_t id, Vec& out, const uint8_t* active) {
     const Node& node = p_.nodes[id];
-    for (size_t k = 0; k < node.args.size(); ++k)
-      if (Status s = eval_child(id, k, active); !s) return s;
+    if (Status s = eval_children(id, active); !s) return s;
     const Vec& value = child(id, 0);
     const Vec& start = child(id, 1);
     const Vec* length = node.args.size() == 3 ? &child(id, 2) : nullptr;
@@ -693,8 +697,7 @@ class Evaluator {
 
   Status trim(uint32_t id, Vec& out, const uint8_t* active) {
     const Node& node = p_.nodes[id];
-    for (size_t k = 0; k < node.args.size(); ++k)
-      if (Status s = eval_child(id, k, active); !s) return s;
+    if (Status s = eval_children(id, active); !s) return s;
     const Vec& value = child(id, 0);
     const Vec* characters = node.args.size() == 2 ? &child(id, 1) : nullptr;
     const auto side = static_cast<TrimSide>(node.param);
