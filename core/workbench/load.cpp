@@ -20,8 +20,8 @@ Result<std::unique_ptr<LoadJob>> LoadJob::start(std::unique_ptr<ByteSource> sour
   s.name = name;
   // Like `tamis run`: a malformed record is set aside, not a reason to refuse the file.
   options.lenient = true;
-  // A batch is the unit of one slice's work; 16384 rows keep a slice short.
-  options.batch_rows = 16384;
+  // A batch is the unit of one slice's work; at most 16384 rows keep a slice short.
+  options.batch_rows = std::min<size_t>(options.batch_rows, 16384);
   auto rejected = s.rejected;
   auto reader = CsvReader::open(std::move(source), std::move(name), options, [rejected](const RejectedRecord& r) {
     if (rejected->size() < LoadedFile::kListedRejects) rejected->push_back(r);

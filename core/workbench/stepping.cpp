@@ -99,7 +99,7 @@ bool StepRunner::advance(size_t budget) {
   if (done_) return true;
   if (batches_.empty()) {
     // Fixed on the first slice so both passes see the same batches.
-    target_rows_ = std::max<size_t>(1024, budget / std::max<size_t>(1, input_.column_count()));
+    target_rows_ = std::max<size_t>(256, budget / std::max<size_t>(1, input_.column_count()));
     batches_ = batch_ranges(input_, target_rows_);
   }
   size_t spent = 0;
