@@ -13,7 +13,10 @@
 // first step it changes. table_at() computes what is missing at once (tests,
 // small files); the shells instead check stage_ready() and run
 // make_apply_job() in slices. Tables share their unchanged columns
-// (copy-on-write), so keeping every stage costs only what the steps changed.
+// (copy-on-write). To bound memory on big files, only these tables stay at
+// hand: the file (stage 0), the selected stage and the one before it, and
+// the result; the others are dropped once computed (their change records,
+// serial and schema stay) and recomputed when asked for.
 //
 // Threads: a Document and the jobs it makes belong to one thread at a time.
 // A shell that steps a job on a worker thread must not touch the document
@@ -111,9 +114,17 @@ class Document {
   uint64_t revision() const { return revision_; }
 
   // --- Stages and what each step did (computed now when missing) ---
+  // The reference stays valid until the next edit or computation; copy the
+  // Table (cheap, copy-on-write) to keep it longer.
   const Table& table_at(size_t stage);
   const Table& result() { return table_at(step_count()); }
+  // The stage's table is at hand: table_at(stage) returns at once.
   bool stage_ready(size_t stage) const;
+  // The step has been computed: change(step) returns at once, even when the
+  // table after it has been dropped since.
+  bool step_computed(size_t step) const;
+  // The columns of a stage (as computed, else as the steps declare them).
+  Schema schema_at(size_t stage) const;
   // What step `step` changed; an empty record for a disabled or failing step.
   const ChangeRecord& change(size_t step);
   // The step's plain sentence (or its op and problem when it does not fit).
@@ -130,7 +141,8 @@ class Document {
   // --- Selection: the stage shown in the Data, Column, Findings panels ---
   size_t selected_stage() const { return selected_; }
   void select_stage(size_t stage);
-  // Identifies the computed table of a stage; 0 when not computed.
+  // Identifies the computed table of a stage (kept when its table is
+  // dropped and recomputed); 0 when not computed.
   uint64_t stage_serial(size_t stage) const;
 
   // --- Editing (undoable) ---

@@ -27,7 +27,7 @@ std::vector<std::string> column_in_view(const Table& t, size_t column, const std
 
 }  // namespace
 
-TEST_CASE("unit_workbench_view: NULL and empty text are told apart; white space at the ends is visible") {
+TEST_CASE("unit_workbench_view: NULL and empty text are told apart, white space at the ends is visible") {
   auto doc = document_of("v\n\" a\tb \"\n\"\"\nnull\n\"\xC2\xA0x\"\n\"p\r\nq\"\n");
   REQUIRE(doc->add_step({{"op", "to_null"}, {"columns", {"v"}}, {"values", {"null"}}}));
   const Table& t = doc->result();
