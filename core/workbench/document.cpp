@@ -23,11 +23,25 @@ std::string key_of(const std::string& message) {
   return message.substr(open + 3, close - open - 3);
 }
 
+// Expression errors say "at character N: " (core/engine/expr/lexer.cpp).
+std::optional<size_t> character_of(const std::string& message) {
+  static constexpr std::string_view kMarker = "at character ";
+  const size_t at = message.find(kMarker);
+  if (at == std::string::npos) return std::nullopt;
+  size_t value = 0;
+  size_t i = at + kMarker.size();
+  const size_t digits_start = i;
+  while (i < message.size() && message[i] >= '0' && message[i] <= '9') value = value * 10 + static_cast<size_t>(message[i++] - '0');
+  if (i == digits_start) return std::nullopt;
+  return value;
+}
+
 StepProblem problem_of(const Error& error, std::optional<size_t> step) {
   StepProblem p;
   p.step = error.step ? std::optional<size_t>(static_cast<size_t>(*error.step)) : step;
   p.key = key_of(error.message);
   p.message = error.message;
+  p.character = character_of(error.message);
   return p;
 }
 

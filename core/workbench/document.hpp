@@ -49,6 +49,9 @@ struct StepProblem {
   std::optional<size_t> step;  // 0-based recipe index; nullopt: the input section
   std::string key;             // the parameter at fault ("column", "map", ...); empty when none is named
   std::string message;         // the engine's message, naming step, key and what was expected
+  // For SQL expressions (keep_rows, drop_rows, derive_column): the 1-based
+  // character of the parameter's text where the problem is.
+  std::optional<size_t> character = std::nullopt;
 };
 
 // The result of an edit command. Commands that take step parameters (add,

@@ -174,6 +174,12 @@ TEST_CASE("unit_workbench: edit validation errors name the step and the key and 
   REQUIRE(unknown_op.problems.size() == 1);
   CHECK(unknown_op.problems[0].message.find("unknown op 'shuffle'") != std::string::npos);
 
+  // "name = = 'x'": the second '=' is character 8 (1-based).
+  EditOutcome bad_expression = doc->add_step({{"op", "keep_rows"}, {"where", "name = = 'x'"}});
+  REQUIRE(bad_expression.problems.size() == 1);
+  CHECK(bad_expression.problems[0].key == "where");
+  CHECK(bad_expression.problems[0].character == std::optional<size_t>(8));
+
   CHECK(doc->revision() == revision);
   CHECK(recipe_text(*doc) == recipe_before);
   CHECK(doc->undo_label() == "add deduplicate");
