@@ -96,6 +96,29 @@ Table without_rows(const Table& table, const std::vector<size_t>& dropped) {
 
 json to_plain_json(const nlohmann::ordered_json& j) { return json::parse(j.dump()); }
 
+// Where the recipe's input section would read the file differently from how
+// it was opened: `tamis run` would then see other records or columns.
+std::vector<StepProblem> dialect_problems(const RecipeInput& input, const ReadReport& read) {
+  std::vector<StepProblem> out;
+  auto shown = [](char c) { return c == '\t' ? std::string("tab") : "'" + std::string(1, c) + "'"; };
+  if (input.delimiter && *input.delimiter != read.delimiter)
+    out.push_back({std::nullopt, "delimiter",
+                   "input.delimiter: the recipe reads fields separated by " + shown(*input.delimiter) +
+                       ", but this file was opened with " + shown(read.delimiter)});
+  if (input.header && *input.header != read.header)
+    out.push_back({std::nullopt, "header",
+                   std::string("input.header: the recipe expects ") + (*input.header ? "a" : "no") +
+                       " header row, but this file was opened " + (read.header ? "with" : "without") + " one"});
+  if (input.encoding) {
+    const auto expected = encoding_from_name(*input.encoding);
+    if (expected && *expected != read.encoding)
+      out.push_back({std::nullopt, "encoding",
+                     "input.encoding: the recipe reads " + *input.encoding + ", but this file was opened as " +
+                         std::string(encoding_name(read.encoding))});
+  }
+  return out;
+}
+
 }  // namespace
 
 nlohmann::ordered_json similar_values_step(std::string_view column, std::span<const SimilarChoice> choices) {
@@ -130,7 +153,7 @@ struct Document::State {
     Recipe after;
   };
 
-  std::optional<StepProblem> input_problem;
+  std::vector<StepProblem> input_problems;
   std::vector<RemovedRow> input_rejects;
   uint64_t input_rejected = 0;
   std::vector<Slot> slots;
@@ -151,7 +174,7 @@ struct Document::State {
   static void compute_input(Document& d) {
     State& s = *d.state_;
     const Table& raw = d.file_.table;
-    s.input_problem.reset();
+    s.input_problems = dialect_problems(d.recipe_.input, d.file_.read);
     s.input_rejects.clear();
     s.input_rejected = 0;
     auto keep = check_input_columns(d.recipe_.input, raw.names(), d.file_.name);
@@ -159,7 +182,7 @@ struct Document::State {
     if (!keep) {
       // Shown as far as it goes: the expected columns the file has when the
       // others are to be ignored, else every column.
-      s.input_problem = StepProblem{std::nullopt, "columns", keep.error().message};
+      s.input_problems.push_back(StepProblem{std::nullopt, "columns", keep.error().message});
       const RecipeInput& in = d.recipe_.input;
       for (size_t c = 0; c < raw.column_count(); ++c)
         if (in.unknown_columns != "ignore" ||
@@ -597,7 +620,7 @@ std::optional<StepProblem> Document::step_problem(size_t step) const {
 
 std::vector<StepProblem> Document::problems() const {
   std::vector<StepProblem> out;
-  if (state_->input_problem) out.push_back(*state_->input_problem);
+  out = state_->input_problems;
   for (size_t i = 0; i < step_count(); ++i)
     if (recipe_.steps[i].enabled)
       if (auto p = step_problem(i)) out.push_back(*p);

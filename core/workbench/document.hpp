@@ -18,7 +18,12 @@
 // the result; the others are dropped once computed (their change records,
 // serial and schema stay) and recomputed when asked for.
 //
-// Threads: a Document and the jobs it makes belong to one thread at a time.
+// Opening a recipe checks its input section against the file as opened
+// (delimiter, header, encoding, expected columns): a difference is a problem
+// of the input section, since `tamis run` would read the file differently.
+//
+// Threads: a Document and the jobs it makes belong to one thread at a time,
+// and the jobs must not outlive it.
 // A shell that steps a job on a worker thread must not touch the document
 // until the job has ended. An edit made between two slices is safe: jobs
 // notice it and carry on with the new recipe.
