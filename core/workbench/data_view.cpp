@@ -285,6 +285,17 @@ std::vector<size_t> make_row_view(const Table& table, std::span<const RowFilter>
   return job.take_result();
 }
 
+std::optional<size_t> row_of_line(const Table& table, uint64_t line) {
+  size_t lo = 0, hi = table.row_count();
+  while (lo < hi) {
+    const size_t mid = lo + (hi - lo) / 2;
+    if (table.source_line(mid) < line) lo = mid + 1;
+    else hi = mid;
+  }
+  if (lo < table.row_count() && table.source_line(lo) == line) return lo;
+  return std::nullopt;
+}
+
 StepDiff::StepDiff(Table before, Table after) : before_(std::move(before)), after_(std::move(after)) {
   for (size_t c = 0; c < after_.column_count(); ++c) {
     const auto found = before_.find(after_.name(c));

@@ -8,6 +8,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <memory>
+#include <optional>
 #include <span>
 #include <string>
 #include <vector>
@@ -73,6 +74,11 @@ class RowViewJob final : public Job {
   struct State;
   std::unique_ptr<State> state_;
 };
+
+// The row whose record starts at source line `line` (rows keep source
+// order, so the lines ascend): for the Changes panel's removed rows, looked
+// up in the table before the step.
+std::optional<size_t> row_of_line(const Table& table, uint64_t line);
 
 // Which cells of a stage a step changed: rows are matched by source line
 // (steps never reorder rows), columns by name. A column the step created

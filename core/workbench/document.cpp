@@ -771,6 +771,7 @@ Preview preview_on(const Table& input, uint64_t serial, const nlohmann::json& de
     return p;
   }
   p.description = (*step)->describe();
+  p.depends_on_other_rows = (*step)->needs_first_pass() || (*step)->start() != nullptr;
   p.rows = {std::min(rows.begin, input.row_count()), std::min(rows.end, input.row_count())};
   p.complete = p.rows.begin == 0 && p.rows.end == input.row_count();
   p.before = slice_rows(input, p.rows.begin, p.rows.end);
@@ -839,6 +840,7 @@ bool Document::PreviewJob::step(size_t budget) {
     }
     m.step = std::shared_ptr<const Step>(std::move(*step));
     m.result.description = m.step->describe();
+    m.result.depends_on_other_rows = m.step->needs_first_pass() || m.step->start() != nullptr;
     m.runner = std::make_unique<StepRunner>(*m.step, input);
   }
   if (!m.runner->advance(budget)) return false;

@@ -82,6 +82,10 @@ struct Preview {
   std::string description;             // the step's plain sentence
   RowRange rows;                       // the input rows covered
   bool complete = false;               // covers every row: the counts are final
+  // The step's result on a row depends on other rows (deduplicate,
+  // fill_from_group, carry_forward, some require rules): a window preview
+  // can differ from the complete one beyond its counts.
+  bool depends_on_other_rows = false;
   Table before;                        // the covered input rows
   Table after;                         // what the step made of them
   ChangeRecord change;

@@ -135,6 +135,25 @@ TEST_CASE("unit_workbench_view: the cells a step changed, matched by source line
   CHECK_FALSE(derive.cell_changed(0, 0));
 }
 
+TEST_CASE("unit_workbench_view: a removed row is found again by its source line") {
+  // The quoted value spans lines 3 and 4, so the next record starts on line 5.
+  auto doc = document_of("a,b\nx,1\n\"y\ny\",2\nx,1\nz,3\n");
+  REQUIRE(doc->add_step({{"op", "deduplicate"}}));
+  const ChangeRecord& change = doc->change(0);
+  REQUIRE(change.removed.size() == 1);
+  CHECK(change.removed[0].line == 5);
+  const auto row = row_of_line(doc->table_at(0), change.removed[0].line);
+  REQUIRE(row.has_value());
+  CHECK(*row == 2);
+  CHECK(doc->table_at(0).column(0).text(*row) == "x");
+  CHECK_FALSE(row_of_line(doc->table_at(0), 4).has_value());  // inside a record
+  CHECK_FALSE(row_of_line(doc->table_at(1), 5).has_value());  // removed
+
+  Preview dedup = doc->preview({{"op", "deduplicate"}}, 1, RowRange{0, 2});
+  CHECK(dedup.depends_on_other_rows);
+  CHECK_FALSE(doc->preview({{"op", "trim"}, {"columns", "*"}}, 1, RowRange{0, 2}).depends_on_other_rows);
+}
+
 TEST_CASE("unit_workbench_exports: cleaned CSV and TSV, recipe, SQL and run report") {
   auto doc = document_of("name,when\n Ada ,03/04/2021\nBob,\n");
   REQUIRE(doc->add_step({{"op", "trim"}, {"columns", {"name"}}}));
