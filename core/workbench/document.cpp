@@ -98,13 +98,23 @@ json to_plain_json(const nlohmann::ordered_json& j) { return json::parse(j.dump(
 
 // Where the recipe's input section would read the file differently from how
 // it was opened: `tamis run` would then see other records or columns.
-std::vector<StepProblem> dialect_problems(const RecipeInput& input, const ReadReport& read) {
+std::vector<StepProblem> dialect_problems(const RecipeInput& input, const LoadedFile& file) {
+  const ReadReport& read = file.read;
   std::vector<StepProblem> out;
   auto shown = [](char c) { return c == '\t' ? std::string("tab") : "'" + std::string(1, c) + "'"; };
   if (input.delimiter && *input.delimiter != read.delimiter)
     out.push_back({std::nullopt, "delimiter",
                    "input.delimiter: the recipe reads fields separated by " + shown(*input.delimiter) +
                        ", but this file was opened with " + shown(read.delimiter)});
+  if (input.quote != file.quote)
+    out.push_back({std::nullopt, "quoteChar",
+                   "input.quoteChar: the recipe quotes fields with " + shown(input.quote) +
+                       ", but this file was opened with " + shown(file.quote)});
+  if (input.skip_rows != file.skip_rows)
+    out.push_back({std::nullopt, "skipRows",
+                   "input.skipRows: the recipe skips " + std::to_string(input.skip_rows) +
+                       " lines before the header, but this file was opened skipping " +
+                       std::to_string(file.skip_rows)});
   if (input.header && *input.header != read.header)
     out.push_back({std::nullopt, "header",
                    std::string("input.header: the recipe expects ") + (*input.header ? "a" : "no") +
@@ -174,7 +184,7 @@ struct Document::State {
   static void compute_input(Document& d) {
     State& s = *d.state_;
     const Table& raw = d.file_.table;
-    s.input_problems = dialect_problems(d.recipe_.input, d.file_.read);
+    s.input_problems = dialect_problems(d.recipe_.input, d.file_);
     s.input_rejects.clear();
     s.input_rejected = 0;
     auto keep = check_input_columns(d.recipe_.input, raw.names(), d.file_.name);
@@ -569,6 +579,8 @@ Document::Document(LoadedFile file) : file_(std::move(file)), state_(std::make_u
   recipe_.input.delimiter = read.delimiter;
   recipe_.input.encoding = std::string(encoding_name(read.encoding));
   recipe_.input.header = read.header;
+  recipe_.input.quote = file_.quote;
+  recipe_.input.skip_rows = file_.skip_rows;
   for (const std::string& name : file_.table.names()) recipe_.input.columns.push_back({name, Type::text});
   recipe_.output.format = recipe_.input.format;
   State::compute_input(*this);

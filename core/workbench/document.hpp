@@ -19,7 +19,8 @@
 // serial and schema stay) and recomputed when asked for.
 //
 // Opening a recipe checks its input section against the file as opened
-// (delimiter, header, encoding, expected columns): a difference is a problem
+// (delimiter, quote, skipped lines, header, encoding, expected columns): a
+// difference is a problem
 // of the input section, since `tamis run` would read the file differently.
 //
 // Threads: a Document and the jobs it makes belong to one thread at a time,

@@ -6,6 +6,8 @@ namespace tamis::workbench {
 
 struct LoadJob::State {
   std::string name;
+  char quote = '"';
+  size_t skip_rows = 0;
   std::unique_ptr<CsvReader> reader;
   Table table;
   std::shared_ptr<std::vector<RejectedRecord>> rejected = std::make_shared<std::vector<RejectedRecord>>();
@@ -18,6 +20,8 @@ Result<std::unique_ptr<LoadJob>> LoadJob::start(std::unique_ptr<ByteSource> sour
   job->state_ = std::make_unique<State>();
   State& s = *job->state_;
   s.name = name;
+  s.quote = options.quote;
+  s.skip_rows = options.skip_rows;
   // Like `tamis run`: a malformed record is set aside, not a reason to refuse the file.
   options.lenient = true;
   // A batch is the unit of one slice's work; at most 16384 rows keep a slice short.
@@ -84,6 +88,8 @@ LoadedFile LoadJob::take_result() {
   file.name = s.name;
   file.table = std::move(s.table);
   file.read = s.reader->report();
+  file.quote = s.quote;
+  file.skip_rows = s.skip_rows;
   file.rejected = std::move(*s.rejected);
   return file;
 }

@@ -20,6 +20,8 @@ struct LoadedFile {
   std::string name;  // shown in titles and messages, and written into reports
   Table table;
   ReadReport read;                       // the dialect found, warnings
+  char quote = '"';                      // the quote character and skipped lines the file was read with
+  size_t skip_rows = 0;
   std::vector<RejectedRecord> rejected;  // the first kListedRejects malformed records
   static constexpr size_t kListedRejects = 100;
 };

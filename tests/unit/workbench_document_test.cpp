@@ -233,15 +233,17 @@ TEST_CASE("unit_workbench: opening a recipe that no longer fits reports the step
 
   // A recipe for another dialect would read this file differently.
   EditOutcome other_dialect = doc->open_recipe(
-      R"({"tamis_recipe": 1, "input": {"delimiter": ";", "header": false, "encoding": "windows-1252"}, "steps": []})",
+      R"({"tamis_recipe": 1, "steps": [],
+          "input": {"delimiter": ";", "quoteChar": "'", "skipRows": 2, "header": false, "encoding": "windows-1252"}})",
       "semicolons.json");
   CHECK(other_dialect.applied);
-  REQUIRE(other_dialect.problems.size() == 3);
-  CHECK(other_dialect.problems[0].key == "delimiter");
+  std::vector<std::string> keys;
+  for (const StepProblem& p : other_dialect.problems) {
+    keys.push_back(p.key);
+    CHECK_FALSE(p.step.has_value());
+  }
+  CHECK(keys == std::vector<std::string>{"delimiter", "quoteChar", "skipRows", "header", "encoding"});
   CHECK(other_dialect.problems[0].message.find("';'") != std::string::npos);
-  CHECK(other_dialect.problems[1].key == "header");
-  CHECK(other_dialect.problems[2].key == "encoding");
-  CHECK_FALSE(other_dialect.problems[2].step.has_value());
   REQUIRE(doc->undo());
   CHECK(doc->problems().size() == 3);  // back to the recipe with the missing district
 
@@ -344,4 +346,23 @@ TEST_CASE("unit_workbench: a finding's fix and a similar-values group become ste
   // An unticked member stays as it is: no group is left, so the map is empty.
   SimilarChoice unticked{similar->groups[0], "Oslo", {"oslo"}};
   CHECK(similar_values_step("city", std::span<const SimilarChoice>(&unticked, 1))["map"].empty());
+}
+
+TEST_CASE("unit_workbench: the recipe of a new document reads the file as it was opened") {
+  CsvOptions options;
+  options.quote = '\'';
+  options.skip_rows = 1;
+  auto file = load_file(memory_source("exported by the survey tool\na,b\n'x,y',2\n"), "odd.csv", options);
+  REQUIRE(file.ok());
+  Document doc(std::move(*file));
+  CHECK(doc.table_at(0).column(0).text(0) == "x,y");
+  CHECK(doc.problems().empty());
+  auto again = parse_recipe(recipe_text(doc), "exported");
+  REQUIRE(again.ok());
+  CHECK(again->input.quote == '\'');
+  CHECK(again->input.skip_rows == 1);
+  CHECK(again->input.delimiter == std::optional<char>(','));
+  CHECK(again->input.header == std::optional<bool>(true));
+  REQUIRE(again->input.columns.size() == 2);
+  CHECK(again->input.columns[1].name == "b");
 }
