@@ -29,7 +29,7 @@ struct LoadedFile {
 class LoadJob final : public Job {
  public:
   // Reads the first block and detects the dialect (fails fast on an unreadable file).
-  // options.batch_rows (at most 16384) is the unit of one slice's reading.
+  // options.batch_rows (at most 4096) is the unit of one slice's reading.
   static Result<std::unique_ptr<LoadJob>> start(std::unique_ptr<ByteSource> source, std::string name,
                                                 CsvOptions options = {});
   ~LoadJob() override;

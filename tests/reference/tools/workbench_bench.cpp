@@ -46,17 +46,21 @@ void figure(const std::string& what, double value, const std::string& unit) {
   std::cout << what << ": " << value << ' ' << unit << '\n';
 }
 
-// Runs a job in slices of the default budget; returns the longest slice in ms.
+// Runs a job in slices of the default budget; returns the longest slice in
+// ms and prints what the job was doing then.
 double run_sliced(Job& job, double& total_ms) {
   double longest = 0;
+  std::string longest_label;
   const auto start = Clock::now();
   for (;;) {
+    const std::string label = job.label();
     const auto slice = Clock::now();
     const bool done = job.step(kSliceBudget);
-    longest = std::max(longest, ms_since(slice));
+    if (ms_since(slice) > longest) longest = ms_since(slice), longest_label = label;
     if (done) break;
   }
   total_ms = ms_since(start);
+  std::cout << "  (longest slice while: " << longest_label << ")\n";
   return longest;
 }
 
