@@ -119,9 +119,27 @@ struct RowViewJob::State {
   size_t next_filter = 0, next_key = 0;
   size_t next_run = 0;   // runs of kRun rows sorted so far
   size_t width = 0;      // merge pass: sorted runs have this length
-  size_t next_pair = 0;  // start of the next pair of runs to merge in this pass
+  size_t next_pair = 0;  // start of the pair of runs being merged in this pass
+  size_t merged = 0;     // outputs of that pair written so far
   bool listed = false, done = false;
   static constexpr size_t kRun = 4096;
+  static constexpr size_t kSegment = 65536;  // outputs merged per unit of work
+
+  // How many of the first k outputs of the stable merge of a and b come
+  // from a (the merge-path split; ties take a first).
+  size_t split(const size_t* a, size_t na, const size_t* b, size_t nb, size_t k) const {
+    size_t lo = k > nb ? k - nb : 0, hi = std::min(k, na);
+    while (lo < hi) {
+      const size_t i = lo + (hi - lo) / 2;
+      // a[i] is among the first k outputs when the b values before it are fewer than k - i.
+      const size_t before = static_cast<size_t>(std::lower_bound(b, b + nb, a[i], [this](size_t x, size_t y) {
+                                                  return less(x, y);
+                                                }) - b);
+      if (i + before < k) lo = i + 1;
+      else hi = i;
+    }
+    return lo;
+  }
 
   bool less(size_t a, size_t b) const {
     for (const KeyValues& kv : values) {
@@ -225,17 +243,27 @@ struct RowViewJob::State {
       done = true;
       return 1;
     }
+    // One segment of the pair [lo, mid) + [mid, hi), so a unit stays short
+    // even when the last pass merges two halves of a million rows.
     const size_t lo = next_pair;
     const size_t mid = std::min(n, lo + width), hi = std::min(n, lo + 2 * width);
-    const auto at = [](std::vector<size_t>& v, size_t i) { return v.begin() + static_cast<std::ptrdiff_t>(i); };
-    std::merge(at(view, lo), at(view, mid), at(view, mid), at(view, hi), at(buffer, lo), by_key);
-    next_pair = hi;
+    const size_t* a = view.data() + lo;
+    const size_t* b = view.data() + mid;
+    const size_t na = mid - lo, nb = hi - mid;
+    const size_t k0 = merged, k1 = std::min(hi - lo, merged + kSegment);
+    const size_t i0 = split(a, na, b, nb, k0), i1 = split(a, na, b, nb, k1);
+    std::merge(a + i0, a + i1, b + (k0 - i0), b + (k1 - i1), buffer.data() + lo + k0, by_key);
+    merged = k1;
+    if (merged == hi - lo) {
+      merged = 0;
+      next_pair = hi;
+    }
     if (next_pair >= n) {
       view.swap(buffer);
       width *= 2;
       next_pair = 0;
     }
-    return hi - lo;
+    return k1 - k0;
   }
 };
 
@@ -266,7 +294,7 @@ double RowViewJob::progress() const {
   if (s.width != 0) {
     double done_passes = 1.0;
     for (size_t w = State::kRun; w < s.width; w *= 2) done_passes += 1.0;
-    sorted = (done_passes + static_cast<double>(s.next_pair) / static_cast<double>(n)) / passes;
+    sorted = (done_passes + static_cast<double>(s.next_pair + s.merged) / static_cast<double>(n)) / passes;
   } else if (s.listed && s.next_key == s.keys.size()) {
     sorted = std::min(1.0, static_cast<double>(s.next_run * State::kRun) / static_cast<double>(n)) / passes;
   }

@@ -206,7 +206,7 @@ TEST_CASE("unit_workbench_exports: a recipe that does not fit is not exported") 
   CHECK(stop->step_problem(0)->step == std::optional<size_t>(0));
 }
 
-TEST_CASE("unit_workbench_view: the sliced sort of 20,000 rows equals std::stable_sort") {
+TEST_CASE("unit_workbench_view: the sliced sort of 150,000 rows equals std::stable_sort") {
   // Keys from a fixed linear congruential generator (Knuth's MMIX constants,
   // from memory): few distinct values, so ties and NULLs are frequent.
   uint64_t state = 42;
@@ -215,7 +215,8 @@ TEST_CASE("unit_workbench_view: the sliced sort of 20,000 rows equals std::stabl
     return state >> 33;
   };
   std::string csv = "k,n\n";
-  const size_t rows = 20000;
+  // Enough rows that the last merge pass is cut into segments of 65,536.
+  const size_t rows = 150000;
   for (size_t i = 0; i < rows; ++i) {
     const uint64_t r = next();
     csv += (r % 7 == 0 ? std::string("null") : std::string(1, static_cast<char>('a' + r % 5)));
@@ -240,12 +241,12 @@ TEST_CASE("unit_workbench_view: the sliced sort of 20,000 rows equals std::stabl
   RowViewJob job(t, {}, {{0, false}, {1, true}}, iso());
   size_t slices = 1;
   double last = 0;
-  while (!job.step(1000)) {
+  while (!job.step(50000)) {
     ++slices;
     CHECK(job.progress() >= last);
     last = job.progress();
   }
-  CHECK(slices > 10);  // runs of 4096 rows, then one merged pair of runs per slice
+  CHECK(slices > 15);  // runs of 4096 rows, then merged segments of at most 65,536
   CHECK(job.progress() == 1.0);
   CHECK(job.take_result() == expected);
 }
