@@ -249,4 +249,13 @@ TEST_CASE("unit_workbench_view: the sliced sort of 150,000 rows equals std::stab
   CHECK(slices > 15);  // runs of 4096 rows, then merged segments of at most 65,536
   CHECK(job.progress() == 1.0);
   CHECK(job.take_result() == expected);
+
+  // A filter over many chunks, in slices, keeps the sorted order of what passes.
+  std::vector<size_t> only_a;
+  for (size_t r : expected)
+    if (!t.column(0).is_null(r) && t.column(0).text(r) == "a") only_a.push_back(r);
+  REQUIRE(t.column(0).chunk_count() > 10);
+  RowViewJob filtered(t, {{0, FilterKind::equals, "a"}}, {{0, false}, {1, true}}, iso());
+  CHECK(run_to_end(filtered, 10000));
+  CHECK(filtered.take_result() == only_a);
 }
