@@ -1,0 +1,188 @@
+// The Data grid's helpers: display text (NULL vs empty, visible white space),
+// sorted and filtered views, and the cells a step changed; plus the exports.
+#include <doctest/doctest.h>
+
+#include "data_view.hpp"
+#include "document.hpp"
+#include "exports.hpp"
+#include "workbench_support.hpp"
+
+using namespace tamis;
+using namespace tamis::workbench;
+using tamis::test::document_of;
+using json = nlohmann::json;
+
+namespace {
+
+const DateFormat& iso() {
+  static const DateFormat format = DateFormat::compile("%Y-%m-%d").value();
+  return format;
+}
+
+std::vector<std::string> column_in_view(const Table& t, size_t column, const std::vector<size_t>& view) {
+  std::vector<std::string> out;
+  for (size_t r : view) out.push_back(t.column(column).is_null(r) ? "<NULL>" : std::string(t.column(column).text(r)));
+  return out;
+}
+
+}  // namespace
+
+TEST_CASE("unit_workbench_view: NULL and empty text are told apart; white space at the ends is visible") {
+  auto doc = document_of("v\n\" a\tb \"\n\"\"\nnull\n\"\xC2\xA0x\"\n\"p\r\nq\"\n");
+  REQUIRE(doc->add_step({{"op", "to_null"}, {"columns", {"v"}}, {"values", {"null"}}}));
+  const Table& t = doc->result();
+
+  const CellText spaced = cell_text(t, 0, 0, iso());
+  CHECK_FALSE(spaced.is_null);
+  CHECK(spaced.value == " a\tb ");
+  CHECK(spaced.shown == "\u00B7a\u21E5b\u00B7");  // middle dot for a space, a tab arrow inside
+  CHECK(spaced.leading_marks == 2);                 // U+00B7 is two bytes in UTF-8 (RFC 3629)
+  CHECK(spaced.trailing_marks == 2);
+
+  const CellText empty = cell_text(t, 1, 0, iso());
+  CHECK_FALSE(empty.is_null);
+  CHECK(empty.value.empty());
+  CHECK(empty.shown.empty());
+
+  const CellText null = cell_text(t, 2, 0, iso());
+  CHECK(null.is_null);
+  CHECK(null.value.empty());
+
+  // U+00A0 NO-BREAK SPACE is White_Space in Unicode's PropList.txt.
+  const CellText no_break = cell_text(t, 3, 0, iso());
+  CHECK(no_break.shown == "\u2423x");
+  CHECK(no_break.leading_marks == 3);
+
+  // A line break inside a value is one mark, CR LF included.
+  CHECK(cell_text(t, 4, 0, iso()).shown == "p\u21B5q");
+}
+
+TEST_CASE("unit_workbench_view: typed cells show their canonical text") {
+  auto doc = document_of("d,n\n03/04/2021,\"1,200\"\n");
+  REQUIRE(doc->add_step({{"op", "parse_date"}, {"column", "d"}, {"formats", {"%m/%d/%Y"}}}));
+  REQUIRE(doc->add_step({{"op", "parse_number"}, {"column", "n"}, {"group_mark", ","}, {"scale", 2}}));
+  CHECK(cell_text(doc->result(), 0, 0, iso()).value == "2021-03-04");  // ISO 8601 calendar date
+  CHECK(cell_text(doc->result(), 0, 1, iso()).value == "1200.00");
+}
+
+TEST_CASE("unit_workbench_view: sorting is by code point, NULL last, ties in source order") {
+  // Code points: Z U+005A < a U+0061 < e U+0065 < É U+00C9 (Unicode code charts).
+  auto doc = document_of("k,i\ne,1\n\xC3\x89,2\n,3\nZ,4\na,5\ne,6\n");
+  REQUIRE(doc->add_step({{"op", "to_null"}, {"columns", {"k"}}, {"blank", true}}));
+  const Table& t = doc->result();
+  std::vector<SortKey> up{{0, false}};
+  auto view = make_row_view(t, {}, up, iso());
+  CHECK(column_in_view(t, 0, view) == std::vector<std::string>{"Z", "a", "e", "e", "\xC3\x89", "<NULL>"});
+  CHECK(column_in_view(t, 1, view) == std::vector<std::string>{"4", "5", "1", "6", "2", "3"});
+  std::vector<SortKey> down{{0, true}};
+  view = make_row_view(t, {}, down, iso());
+  CHECK(column_in_view(t, 0, view) == std::vector<std::string>{"\xC3\x89", "e", "e", "a", "Z", "<NULL>"});
+  CHECK(column_in_view(t, 1, view) == std::vector<std::string>{"2", "1", "6", "5", "4", "3"});
+  // The view never touches the recipe.
+  CHECK(doc->step_count() == 1);
+}
+
+TEST_CASE("unit_workbench_view: typed columns sort by value, not by text") {
+  auto doc = document_of("n\n10\n9\n-3\n100\n");
+  REQUIRE(doc->add_step({{"op", "parse_number"}, {"column", "n"}}));
+  std::vector<SortKey> up{{0, false}};
+  const Table& t = doc->result();
+  const auto view = make_row_view(t, {}, up, iso());
+  CHECK(view == std::vector<size_t>{2, 1, 0, 3});
+}
+
+TEST_CASE("unit_workbench_view: filters select rows without changing the table") {
+  auto doc = document_of("k\nOak\n oak\n\"\"\nnull\nPine\n");  // "" is an empty value, an empty line is none
+  REQUIRE(doc->add_step({{"op", "to_null"}, {"columns", {"k"}}, {"values", {"null"}}}));
+  const Table& t = doc->result();
+  auto rows = [&](FilterKind kind, std::string text = "") {
+    std::vector<RowFilter> f{{0, kind, std::move(text)}};
+    return make_row_view(t, f, {}, iso());
+  };
+  CHECK(rows(FilterKind::contains, "ak") == std::vector<size_t>{0, 1});
+  CHECK(rows(FilterKind::contains, "AK").empty());  // case-sensitive (design §4)
+  CHECK(rows(FilterKind::equals, "Oak") == std::vector<size_t>{0});
+  CHECK(rows(FilterKind::is_null) == std::vector<size_t>{3});
+  CHECK(rows(FilterKind::is_empty) == std::vector<size_t>{2});
+  CHECK(rows(FilterKind::not_null) == std::vector<size_t>{0, 1, 2, 4});
+  CHECK(rows(FilterKind::edge_space) == std::vector<size_t>{1});
+  std::vector<RowFilter> both{{0, FilterKind::contains, "a"}, {0, FilterKind::edge_space, ""}};
+  CHECK(make_row_view(t, both, {}, iso()) == std::vector<size_t>{1});
+}
+
+TEST_CASE("unit_workbench_view: the cells a step changed, matched by source line") {
+  auto doc = document_of("a,b\n x,1\ny,2\ny,2\n z ,3\n");
+  REQUIRE(doc->add_step({{"op", "trim"}, {"columns", {"a"}}}));
+  REQUIRE(doc->add_step({{"op", "deduplicate"}}));
+  REQUIRE(doc->add_step({{"op", "derive_column"}, {"name", "c"}, {"expr", "b || a"}}));
+
+  StepDiff trim(doc->table_at(0), doc->table_at(1));
+  CHECK(trim.cell_changed(0, 0));
+  CHECK_FALSE(trim.cell_changed(1, 0));
+  CHECK(trim.cell_changed(3, 0));
+  for (size_t r = 0; r < 4; ++r) CHECK_FALSE(trim.cell_changed(r, 1));
+
+  // After removing row 2 (line 4), row 2 of the result is line 5: unchanged.
+  StepDiff dedup(doc->table_at(1), doc->table_at(2));
+  REQUIRE(doc->table_at(2).row_count() == 3);
+  for (size_t r = 0; r < 3; ++r)
+    for (size_t c = 0; c < 2; ++c) CHECK_FALSE(dedup.cell_changed(r, c));
+
+  StepDiff derive(doc->table_at(2), doc->table_at(3));
+  CHECK(derive.column_is_new(2));
+  CHECK(derive.cell_changed(0, 2));
+  CHECK_FALSE(derive.column_is_new(0));
+  CHECK_FALSE(derive.cell_changed(0, 0));
+}
+
+TEST_CASE("unit_workbench_exports: cleaned CSV and TSV, recipe, SQL and run report") {
+  auto doc = document_of("name,when\n Ada ,03/04/2021\nBob,\n");
+  REQUIRE(doc->add_step({{"op", "trim"}, {"columns", {"name"}}}));
+  REQUIRE(doc->add_step({{"op", "parse_date"}, {"column", "when"}, {"formats", {"%m/%d/%Y"}}, {"on_error", "null"}}));
+  auto csv = export_cleaned(*doc);
+  REQUIRE(csv.ok());
+  CHECK(*csv == "name,when\nAda,2021-03-04\nBob,\n");
+  auto tsv = export_cleaned(*doc, "tsv");
+  REQUIRE(tsv.ok());
+  CHECK(*tsv == "name\twhen\nAda\t2021-03-04\nBob\t\n");
+  CHECK_FALSE(export_cleaned(*doc, "xlsx").ok());
+
+  const std::string recipe = export_recipe(*doc);
+  auto reparsed = parse_recipe(recipe, "exported");
+  REQUIRE(reparsed.ok());
+  CHECK(reparsed->steps.size() == 2);
+  CHECK(reparsed->input.columns.size() == 2);
+
+  auto sql = export_sql_script(*doc, Dialect::sqlite);
+  REQUIRE_MESSAGE(sql.ok(), (sql.ok() ? std::string() : sql.error().to_string()));
+  CHECK(sql->find("tamis_clean") != std::string::npos);
+
+  auto report = export_run_report(*doc, "clean.csv");
+  REQUIRE(report.ok());
+  const json parsed = json::parse(*report);
+  const json& totals = parsed["totals"];
+  CHECK(totals["rows_read"] == 2);
+  CHECK(totals["rows_written"] == 2);
+  // Row accounting (design §5): rows read = written + removed + rejected.
+  CHECK(totals["rows_read"].get<int>() ==
+        totals["rows_written"].get<int>() + totals["rows_removed"].get<int>() + totals["rows_rejected"].get<int>());
+  CHECK(parsed["steps"].size() == 2);
+}
+
+TEST_CASE("unit_workbench_exports: a recipe that does not fit is not exported") {
+  auto doc = document_of("a\n1\n");
+  REQUIRE(doc->add_step({{"op", "rename_columns"}, {"map", {{"a", "b"}}}}));
+  REQUIRE(doc->add_step({{"op", "trim"}, {"columns", {"b"}}}));
+  REQUIRE(doc->move_step(1, 0).applied);
+  auto csv = export_cleaned(*doc);
+  REQUIRE_FALSE(csv.ok());
+  CHECK(csv.error().step == std::optional<int>(0));
+  CHECK(csv.error().message.find("step 1") != std::string::npos);
+  CHECK_FALSE(export_run_report(*doc).ok());
+
+  auto stop = document_of("a\n1\n\n");
+  REQUIRE(stop->add_step({{"op", "require"}, {"rule", "row_count"}, {"min", 5}}));
+  CHECK_FALSE(export_cleaned(*stop).ok());
+  REQUIRE(stop->step_problem(0).has_value());
+  CHECK(stop->step_problem(0)->step == std::optional<size_t>(0));
+}
