@@ -153,7 +153,7 @@ DataGrid::Events DataGrid::draw(const GridSource& source, std::optional<size_t> 
     label += "##col";
     label += std::to_string(c);
     ImGui::TableHeader(label.c_str());
-    if (ImGui::IsItemClicked(ImGuiMouseButton_Right)) events.column_clicked = c;
+    if (ImGui::IsItemClicked(ImGuiMouseButton_Right)) events.column_inspected = c;
     if (ImGui::IsItemHovered()) {
       const std::string_view name = source.column_name(c);
       const std::string_view type = source.column_type(c);

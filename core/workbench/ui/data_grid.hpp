@@ -38,7 +38,8 @@ class DataGrid {
   // user clicked a column header (nullopt column = back to source order).
   struct Events {
     std::optional<std::optional<GridSort>> sort;
-    std::optional<size_t> column_clicked;  // header or cell: selects the column
+    std::optional<size_t> column_clicked;   // a cell: selects its column
+    std::optional<size_t> column_inspected; // a header, right-clicked: show the column's profile
   };
   Events draw(const GridSource& source, std::optional<size_t> selected_column);
 
