@@ -384,7 +384,7 @@ class ProfileJob final : public StageJob {
   using StageJob::StageJob;
 
  private:
-  void start(const Table& table) override { profiler_ = std::make_unique<TableProfiler>(table); }
+  void start(const Table& table) override { profiler_ = std::make_unique<TableProfiler>(as_text(table)); }
   bool work(size_t budget) override { return profiler_->step(budget); }
   double work_progress() const override { return profiler_->progress(); }
   std::string work_label() const override { return "Profiling the columns"; }
@@ -402,13 +402,14 @@ class FindingsJob final : public StageJob {
 
  private:
   void start(const Table& table) override {
-    table_ = table;
+    schema_ = schema_of(table);
+    table_ = as_text(table);
     scanner_.reset();
     profiler_.reset();
     if (s_.profile && s_.profile_serial == d_.stage_serial(stage_))
-      scanner_ = std::make_unique<FindingScanner>(table, *s_.profile, options_);
+      scanner_ = std::make_unique<FindingScanner>(table_, *s_.profile, options_);
     else
-      profiler_ = std::make_unique<TableProfiler>(table);
+      profiler_ = std::make_unique<TableProfiler>(table_);
   }
   bool work(size_t budget) override {
     if (!scanner_) {
@@ -428,10 +429,33 @@ class FindingsJob final : public StageJob {
       s_.profile = profiler_->result();
       s_.profile_serial = serial;
     }
-    s_.findings = scanner_->result();
+    s_.findings = fitting_findings(scanner_->result());
     s_.findings_serial = serial;
   }
+  // The detectors saw typed columns as text (the engine's profiler reads
+  // text only): a finding about a typed column whose fixes all need text
+  // ("dates stored as text" on a date column) is not a problem of this stage.
+  std::vector<Finding> fitting_findings(const std::vector<Finding>& found) const {
+    std::vector<Finding> out;
+    for (const Finding& f : found) {
+      const bool typed = std::any_of(f.columns.begin(), f.columns.end(), [&](const std::string& name) {
+        return std::any_of(schema_.begin(), schema_.end(),
+                           [&](const ColumnSchema& c) { return c.name == name && c.type != Type::text; });
+      });
+      if (!typed || f.fixes.empty()) {
+        out.push_back(f);
+        continue;
+      }
+      Finding kept = f;
+      kept.fixes.clear();
+      for (const SuggestedFix& fix : f.fixes)
+        if (parse_step(to_plain_json(fix.step), static_cast<int>(stage_), schema_)) kept.fixes.push_back(fix);
+      if (!kept.fixes.empty()) out.push_back(std::move(kept));
+    }
+    return out;
+  }
   FindingOptions options_;
+  Schema schema_;
   Table table_;
   std::unique_ptr<TableProfiler> profiler_;
   std::unique_ptr<FindingScanner> scanner_;
@@ -543,7 +567,9 @@ EditOutcome Document::add_step(const nlohmann::json& definition, std::optional<s
   if (!recipe) return EditOutcome{false, {problem_of(recipe.error(), at)}};
   Recipe next = recipe_;
   next.steps.insert(next.steps.begin() + static_cast<std::ptrdiff_t>(at), std::move(recipe->steps[0]));
-  return State::commit(*this, std::move(next), "add " + definition.value("op", std::string("step")));
+  EditOutcome outcome = State::commit(*this, std::move(next), "add " + definition.value("op", std::string("step")));
+  selected_ = at + 1;
+  return outcome;
 }
 
 EditOutcome Document::add_step(Preview&& preview) {

@@ -135,6 +135,7 @@ class Document {
 
   // --- Editing (undoable) ---
   // At the end when position is nullopt. `definition` is a recipe step object.
+  // The new step becomes the selected one (its result is shown).
   EditOutcome add_step(const nlohmann::json& definition, std::optional<size_t> position = std::nullopt);
   // Adds a previewed step, reusing its result when it covered the whole
   // table and the stage it saw is unchanged.
@@ -168,12 +169,14 @@ class Document {
   std::unique_ptr<PreviewJob> make_preview_job(const nlohmann::json& definition, size_t position);
 
   // --- Column profile, findings, similar values of the selected stage ---
+  // Typed columns are profiled through their canonical text (ISO 8601 dates).
   // nullptr until the job made for the current selection has finished.
   const TableProfile* profile() const;
   std::unique_ptr<Job> make_profile_job();
   const std::vector<Finding>* findings() const;
   std::unique_ptr<Job> make_findings_job(FindingOptions options = {});
-  // Inserts a finding's fix right after the selected stage.
+  // Inserts a finding's fix right after the selected stage (and selects it,
+  // so fixes added one after another stay in that order).
   EditOutcome add_fix(const Finding& finding, size_t fix = 0);
   const SimilarResult* similar() const;
   std::unique_ptr<Job> make_similar_job(size_t column, SimilarOptions options = {});

@@ -2,6 +2,8 @@
 
 #include <algorithm>
 
+#include "csv_writer.hpp"
+#include "dates.hpp"
 #include "job.hpp"
 
 namespace tamis::workbench {
@@ -87,6 +89,34 @@ std::vector<std::pair<size_t, size_t>> batch_ranges(const Table& table, size_t t
     last_cut = cut;
   }
   if (rows > begin || out.empty()) out.emplace_back(begin, rows);
+  return out;
+}
+
+Table as_text(const Table& table) {
+  static const DateFormat iso = DateFormat::compile("%Y-%m-%d").value();
+  Table out = table;
+  std::string cell;
+  for (size_t c = 0; c < table.column_count(); ++c) {
+    const Column& column = table.column(c);
+    if (column.type() == Type::text) continue;
+    auto text = std::make_shared<Column>(Type::text);
+    for (size_t k = 0; k < column.chunk_count(); ++k) {
+      const ColumnChunk& chunk = column.chunk(k);
+      TextChunkBuilder builder;
+      builder.reserve(chunk.rows, chunk.rows * 8);
+      for (size_t i = 0; i < chunk.rows; ++i) {
+        if (chunk.is_null(i)) {
+          builder.append_null();
+          continue;
+        }
+        cell.clear();
+        append_canonical(column, chunk, i, iso, cell);
+        builder.append(cell);
+      }
+      text->append_chunk(builder.finish());
+    }
+    out = out.with_column(c, std::move(text));
+  }
   return out;
 }
 

@@ -300,9 +300,11 @@ TEST_CASE("unit_workbench: a finding's fix and a similar-values group become ste
   REQUIRE(doc->add_fix(*edge));
   CHECK(doc->recipe().steps[0].op == "trim");
   CHECK(doc->result().column(0).text(0) == "Ada");
+  CHECK(doc->selected_stage() == 1);  // the added step is selected
+  CHECK(doc->findings() == nullptr);  // findings belong to the stage they were computed on
+  doc->select_stage(0);
   CHECK(doc->findings() != nullptr);  // the file itself (stage 0) did not change
   doc->select_stage(1);
-  CHECK(doc->findings() == nullptr);  // findings belong to the stage they were computed on
 
   REQUIRE(run_to_end(*doc->make_similar_job(1)));
   const SimilarResult* similar = doc->similar();

@@ -234,3 +234,20 @@ TEST_CASE("unit_workbench_jobs: an edit between two slices is picked up by the r
   REQUIRE(fresh.replace_recipe(edited).applied);
   CHECK(exact_difference(fresh.result(), doc.result()) == "");
 }
+
+TEST_CASE("unit_workbench_jobs: typed stages are profiled and searched through their canonical text") {
+  Document doc(demo_in_small_chunks());
+  REQUIRE(doc.add_step(
+      {{"op", "parse_date"}, {"column", "planted_on"}, {"formats", {"%Y-%m-%d", "%m/%d/%Y"}}, {"on_error", "null"}}));
+  REQUIRE(doc.add_step({{"op", "parse_number"}, {"column", "funding_k"}, {"decimal_mark", ","}, {"on_error", "null"}}));
+  CHECK(doc.selected_stage() == 2);
+  REQUIRE(run_to_end(*doc.make_findings_job(), 1000));
+  REQUIRE(doc.profile() != nullptr);
+  REQUIRE(doc.findings() != nullptr);
+  const Table& t = doc.table_at(2);
+  const ColumnProfile& planted = doc.profile()->columns[*t.find("planted_on")];
+  CHECK(planted.type == Type::date);
+  CHECK(planted.type_share == 1.0);
+  CHECK(planted.nulls == t.row_count() - planted.non_blank);
+  for (const Finding& f : *doc.findings()) CHECK(f.kind != "dates_as_text");
+}
