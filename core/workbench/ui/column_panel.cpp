@@ -5,7 +5,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <cstdlib>
+#include <optional>
 
 #include "text_format.hpp"
 #include "workbench_state.hpp"
@@ -43,6 +45,35 @@ void fact(const char* label, uint64_t count, uint64_t rows, const char* tip) {
   if (count > 0)
     draw->AddRectFilled(ImVec2(at.x, top), ImVec2(at.x + std::max(2.0f, width * share), top + height), palette().bar);
   ImGui::Dummy(ImVec2(width, ImGui::GetTextLineHeight()));
+}
+
+// A small bar chart of our own: one bar per bin, the hovered bar's range and
+// count in a tooltip (bin_label writes it).
+template <class BinLabel>
+void draw_bars(const char* id, const std::vector<float>& bins, float height, BinLabel bin_label) {
+  ImGui::PushID(id);
+  const ImVec2 at = ImGui::GetCursorScreenPos();
+  const float width = ImGui::GetContentRegionAvail().x;
+  ImGui::InvisibleButton("##bars", ImVec2(width, height));
+  ImDrawList* draw = ImGui::GetWindowDrawList();
+  draw->AddRectFilled(at, ImVec2(at.x + width, at.y + height), ImGui::GetColorU32(ImGuiCol_FrameBg));
+  const float top = *std::max_element(bins.begin(), bins.end());
+  const float step = width / static_cast<float>(bins.size());
+  const float gap = step > 4 ? 1.0f : 0.0f;
+  std::optional<size_t> hovered;
+  if (ImGui::IsItemHovered()) {
+    const float x = ImGui::GetIO().MousePos.x - at.x;
+    hovered = std::min(bins.size() - 1, static_cast<size_t>(std::max(0.0f, x / step)));
+  }
+  for (size_t i = 0; i < bins.size(); ++i) {
+    if (bins[i] <= 0 || top <= 0) continue;
+    const float bar = std::max(1.0f, (height - 2) * bins[i] / top);
+    const float left = at.x + step * static_cast<float>(i);
+    draw->AddRectFilled(ImVec2(left + gap, at.y + height - bar), ImVec2(left + step - gap, at.y + height),
+                        hovered == i ? palette().bar_selected : palette().bar);
+  }
+  if (hovered) ImGui::SetTooltip("%s: %s", bin_label(*hovered).c_str(), count_text(static_cast<uint64_t>(bins[*hovered])).c_str());
+  ImGui::PopID();
 }
 
 void compute_shape(const Table& table, size_t column, Type profiled_type, ColumnShape& shape) {
@@ -127,7 +158,15 @@ void Workbench::State::draw_column_panel() {
   fact("distinct", p.distinct, p.rows, "Different values in the column.");
   fact("edge spaces", p.edge_whitespace, p.rows, "Values with white space at the start or the end.");
   fact("end punctuation", p.trailing_punctuation, p.rows, "Values whose last character is punctuation, such as a stray dot.");
-  if (p.min && p.max) ImGui::Text("from %s to %s", p.min->c_str(), p.max->c_str());
+  if (p.min && p.max) {
+    ImGui::TextUnformatted("from");
+    ImGui::SameLine();
+    draw_value(*p.min, false);
+    ImGui::SameLine();
+    ImGui::TextUnformatted("to");
+    ImGui::SameLine();
+    draw_value(*p.max, false);
+  }
   if (p.mean && p.std_dev) ImGui::TextDisabled("mean %.4g, standard deviation %.4g", *p.mean, *p.std_dev);
   ImGui::TextDisabled("length %llu to %llu characters", static_cast<unsigned long long>(p.length_min),
                       static_cast<unsigned long long>(p.length_max));
@@ -142,17 +181,22 @@ void Workbench::State::draw_column_panel() {
   if (!column_shape.histogram.empty()) {
     ImGui::Spacing();
     ImGui::Text("Values from %.6g to %.6g", column_shape.histogram_min, column_shape.histogram_max);
-    ImGui::PlotHistogram("##histogram", column_shape.histogram.data(), static_cast<int>(column_shape.histogram.size()),
-                         0, nullptr, 0.0f, FLT_MAX, ImVec2(-1, plot_height));
-    if (ImGui::IsItemHovered())
-      ImGui::SetTooltip("How the values spread between the smallest and the largest, in %zu equal steps.", kHistogramBins);
+    const double low = column_shape.histogram_min;
+    const double bin_width = (column_shape.histogram_max - low) / static_cast<double>(kHistogramBins);
+    draw_bars("histogram", column_shape.histogram, plot_height, [&](size_t bin) {
+      char text[64];
+      std::snprintf(text, sizeof text, "%.6g to %.6g", low + bin_width * static_cast<double>(bin),
+                    low + bin_width * static_cast<double>(bin + 1));
+      return std::string(text);
+    });
   }
   if (!column_shape.lengths.empty()) {
     ImGui::Text("Lengths 0 to %zu%s characters", column_shape.longest_shown,
                 column_shape.longest_shown > kLongestLengthShown ? "+" : "");
-    ImGui::PlotHistogram("##lengths", column_shape.lengths.data(), static_cast<int>(column_shape.lengths.size()), 0,
-                         nullptr, 0.0f, FLT_MAX, ImVec2(-1, plot_height));
-    if (ImGui::IsItemHovered()) ImGui::SetTooltip("How many values have each length, in characters (the last bar: longer).");
+    draw_bars("lengths", column_shape.lengths, plot_height, [&](size_t length) {
+      return length > kLongestLengthShown ? "longer than " + std::to_string(kLongestLengthShown) + " characters"
+                                          : plural(length, "character", "characters");
+    });
   }
 
   ImGui::Spacing();
@@ -184,7 +228,8 @@ void Workbench::State::draw_column_panel() {
     if (ImGui::IsItemHovered())
       ImGui::SetTooltip("Each value written as its kind of characters: A upper-case letters, a lower-case, 9 digits.");
     for (const ValueCount& shape : p.shapes) {
-      ImGui::BulletText("%s", shape.value.c_str());
+      ImGui::Bullet();
+      draw_value(shape.value, false);
       ImGui::SameLine(ImGui::GetWindowContentRegionMax().x - ImGui::GetFontSize() * 4);
       ImGui::TextDisabled("%s", count_text(shape.count).c_str());
     }

@@ -96,9 +96,9 @@ void Workbench::State::draw_filter_bar() {
   if (!table || table->column_count() == 0) return;
   if (new_filter.column >= table->column_count()) new_filter.column = 0;
   ImGui::AlignTextToFramePadding();
-  ImGui::TextUnformatted("Show rows where");
+  ImGui::TextUnformatted("Rows where");
   ImGui::SameLine();
-  ImGui::SetNextItemWidth(ImGui::GetFontSize() * 9);
+  ImGui::SetNextItemWidth(ImGui::GetFontSize() * 7);
   if (ImGui::BeginCombo("##filter-column", table->name(new_filter.column).c_str())) {
     for (size_t c = 0; c < table->column_count(); ++c)
       if (ImGui::Selectable((table->name(c) + "##f" + std::to_string(c)).c_str(), c == new_filter.column)) new_filter.column = c;
@@ -106,7 +106,7 @@ void Workbench::State::draw_filter_bar() {
   }
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("The column to test.");
   ImGui::SameLine();
-  ImGui::SetNextItemWidth(ImGui::GetFontSize() * 9);
+  ImGui::SetNextItemWidth(ImGui::GetFontSize() * 7);
   if (ImGui::BeginCombo("##filter-kind", filter_kind_label(new_filter.kind))) {
     for (wb::FilterKind kind : kFilterKinds)
       if (ImGui::Selectable(filter_kind_label(kind), kind == new_filter.kind)) new_filter.kind = kind;
@@ -116,7 +116,7 @@ void Workbench::State::draw_filter_bar() {
   bool apply = false;
   if (filter_takes_text(new_filter.kind)) {
     ImGui::SameLine();
-    ImGui::SetNextItemWidth(ImGui::GetFontSize() * 10);
+    ImGui::SetNextItemWidth(ImGui::GetFontSize() * 7);
     if (focus_filter) {
       ImGui::SetKeyboardFocusHere();
       focus_filter = false;

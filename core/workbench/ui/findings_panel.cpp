@@ -19,8 +19,10 @@ void Workbench::State::draw_findings_panel() {
     ImGui::TextColored(ImColor(palette().good_text), "No problems found at this step.");
     return;
   }
-  ImGui::TextDisabled("%s, most rows first. Fixes are added after step %zu.", plural(findings->size(), "finding", "findings").c_str(),
-                      document->selected_stage());
+  ImGui::PushStyleColor(ImGuiCol_Text, palette().muted_text);
+  ImGui::TextWrapped("%s, most rows first. Fixes are added after step %zu.", plural(findings->size(), "finding", "findings").c_str(),
+                     document->selected_stage());
+  ImGui::PopStyleColor();
   for (size_t i = 0; i < findings->size(); ++i) {
     const Finding& finding = (*findings)[i];
     ImGui::PushID(static_cast<int>(i));
@@ -37,7 +39,9 @@ void Workbench::State::draw_findings_panel() {
     if (open) {
       ImGui::PushTextWrapPos(0.0f);
       ImGui::TextUnformatted(finding.explanation.c_str());
-      for (const std::string& detail : finding.details) ImGui::TextDisabled("%s", detail.c_str());
+      ImGui::PushStyleColor(ImGuiCol_Text, palette().muted_text);
+      for (const std::string& detail : finding.details) ImGui::TextUnformatted(detail.c_str());
+      ImGui::PopStyleColor();
       ImGui::PopTextWrapPos();
       for (size_t f = 0; f < finding.fixes.size(); ++f) {
         const SuggestedFix& fix = finding.fixes[f];
@@ -45,7 +49,6 @@ void Workbench::State::draw_findings_panel() {
         ImGui::Separator();
         const std::string op = fix.step.value("op", std::string("step"));
         ImGui::Text("%s %s", f == 0 ? "Suggested fix:" : "Other fix:", op.c_str());
-        ImGui::SameLine();
         ImGui::TextDisabled("%s changed, %s removed", plural(fix.preview.cells_changed, "cell", "cells").c_str(),
                             plural(fix.preview.rows_removed, "row", "rows").c_str());
         if (!fix.safe) {

@@ -37,7 +37,7 @@ void set_colours(const ThemeColours& c, bool dark) {
   colours[ImGuiCol_TextDisabled] = rgb(c.text_dim);
   colours[ImGuiCol_WindowBg] = rgb(c.window);
   colours[ImGuiCol_ChildBg] = rgb(c.child);
-  colours[ImGuiCol_PopupBg] = rgb(c.popup, 0.98f);
+  colours[ImGuiCol_PopupBg] = rgb(c.popup);
   colours[ImGuiCol_Border] = rgb(c.border);
   colours[ImGuiCol_BorderShadow] = rgb(0, 0.0f);
   colours[ImGuiCol_FrameBg] = rgb(c.frame);

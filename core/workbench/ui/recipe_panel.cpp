@@ -60,13 +60,16 @@ void Workbench::State::draw_recipe_panel() {
     if (ImGui::IsItemHovered())
       ImGui::SetTooltip(enabled ? "Untick to skip this step (it stays in the recipe)." : "Tick to run this step again.");
     ImGui::SameLine();
+    // A selectable as tall as the wrapped sentence, with the sentence drawn on it.
     const std::string sentence = std::to_string(i + 1) + ". " + document->describe_step(i);
-    ImGui::PushTextWrapPos(0.0f);
-    if (!step.enabled) ImGui::PushStyleColor(ImGuiCol_Text, ImGui::GetColorU32(ImGuiCol_TextDisabled));
-    if (ImGui::Selectable(sentence.c_str(), selected == i + 1)) select_stage(i + 1);
-    if (!step.enabled) ImGui::PopStyleColor();
-    ImGui::PopTextWrapPos();
+    const float wrap_width = ImGui::GetContentRegionAvail().x;
+    const ImVec2 text_size = ImGui::CalcTextSize(sentence.c_str(), nullptr, false, wrap_width);
+    const ImVec2 at = ImGui::GetCursorScreenPos();
+    if (ImGui::Selectable("##step", selected == i + 1, 0, ImVec2(wrap_width, text_size.y))) select_stage(i + 1);
     if (ImGui::IsItemHovered()) ImGui::SetTooltip("Show the table after this step, and what it changed.");
+    ImGui::GetWindowDrawList()->AddText(ImGui::GetFont(), ImGui::GetFontSize(), at,
+                                        ImGui::GetColorU32(step.enabled ? ImGuiCol_Text : ImGuiCol_TextDisabled),
+                                        sentence.c_str(), nullptr, wrap_width);
     if (!step.note.empty()) ImGui::TextDisabled("   %s", step.note.c_str());
     if (std::optional<wb::StepProblem> problem = document->step_problem(i)) {
       ImGui::PushTextWrapPos(0.0f);

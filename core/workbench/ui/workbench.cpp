@@ -460,8 +460,8 @@ void Workbench::State::draw_workspace() {
   const ImVec2 available = ImGui::GetContentRegionAvail();
   const float status_height = ImGui::GetFrameHeightWithSpacing() + ImGui::GetStyle().ItemSpacing.y;
   const float height = available.y - status_height;
-  const float left_width = std::max(ImGui::GetFontSize() * 16, available.x * 0.22f);
-  const float right_width = std::max(ImGui::GetFontSize() * 18, available.x * 0.28f);
+  const float left_width = std::max(ImGui::GetFontSize() * 14, available.x * 0.2f);
+  const float right_width = std::max(ImGui::GetFontSize() * 17, available.x * 0.27f);
   const float centre_width = available.x - left_width - right_width - ImGui::GetStyle().ItemSpacing.x * 2;
 
   ImGui::BeginChild("##recipe-panel", ImVec2(left_width, height), true);

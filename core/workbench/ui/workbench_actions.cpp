@@ -125,10 +125,11 @@ Status Workbench::run_action(std::string_view line) {
     if (definition.is_discarded() || !definition.is_object()) return usage_error("add-step: not a JSON object: " + rest);
     const StepSpec* spec = find_step_spec(definition.value("op", std::string()));
     if (!spec) return usage_error("add-step: unknown op");
-    // Through the form, as a person would: fill it, preview, add.
+    // Through the form's fields, as a person would fill them, then added.
     const size_t at = s.document->selected_stage();
-    s.form.open_new(*spec, at, schema_of(s.document->table_at(at)), &definition);
-    return s.add_step(s.form.definition(), at);
+    StepForm filled;
+    filled.open_new(*spec, at, schema_of(s.document->table_at(at)), &definition);
+    return s.add_step(filled.definition(), at);
   }
   if (verb == "select-step") {
     Result<size_t> n = index_arg(0);
