@@ -137,7 +137,7 @@ void Workbench::State::draw_column_panel() {
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("The column described below (or click a cell in the Data panel).");
   const TableProfile* profile = document->profile();
   if (!profile || column >= profile->columns.size()) {
-    ImGui::TextDisabled("Profiling...");
+    draw_waiting("Profiling...");
     return;
   }
   const ColumnProfile& p = profile->columns[column];

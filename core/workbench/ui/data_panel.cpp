@@ -164,7 +164,7 @@ void Workbench::State::draw_data_panel() {
   ImGui::TextDisabled(stage == 0 ? "the file as read" : "as of step %zu", stage);
   const Table* table = shown_table();
   if (!table) {
-    ImGui::TextDisabled("Working out the table as of this step...");
+    draw_waiting("Working out the table as of this step...");
     return;
   }
   refresh_view();

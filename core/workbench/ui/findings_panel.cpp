@@ -12,7 +12,7 @@ void Workbench::State::draw_findings_panel() {
   if (!document) return;
   const std::vector<Finding>* findings = document->findings();
   if (!findings) {
-    ImGui::TextDisabled("Looking for problems...");
+    draw_waiting("Looking for problems...");
     return;
   }
   if (findings->empty()) {

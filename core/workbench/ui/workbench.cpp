@@ -50,6 +50,7 @@ void Workbench::set_look(Theme theme, float scale, float framebuffer_ratio) {
 bool Workbench::busy() const { return !state_->jobs.empty() || state_->has_pending_work() || state_->measure_frames_left > 0; }
 bool Workbench::wants_to_quit() const { return state_->quit; }
 bool Workbench::measuring_frames() const { return state_->measure_frames_left > 0; }
+bool Workbench::showing_table() const { return !state_->open_screen.active() && state_->shown_table() != nullptr; }
 
 void Workbench::open_path(const std::string& path) {
   state_->browser.close();
@@ -84,12 +85,27 @@ void Workbench::State::run_jobs_for(double milliseconds) {
 void Workbench::State::cancel_jobs() {
   for (QueuedJob& queued : jobs)
     if (queued.cancellable) queued.job->cancel();
+  work_stopped = true;
+}
+
+void Workbench::State::draw_waiting(const char* working_text) {
+  if (!work_stopped) {
+    ImGui::TextDisabled("%s", working_text);
+    return;
+  }
+  ImGui::TextDisabled("Stopped.");
+  ImGui::SameLine();
+  if (ImGui::SmallButton("Continue")) {
+    work_stopped = false;
+    profile_asked_for = findings_asked_for = 0;
+  }
+  if (ImGui::IsItemHovered()) ImGui::SetTooltip("Start the stopped work again.");
 }
 
 // The selected stage must be computed, then profiled, then searched for
 // problems; each is queued once per stage serial.
 bool Workbench::State::has_pending_work() const {
-  if (!document) return false;
+  if (!document || work_stopped) return false;
   const size_t stage = document->selected_stage();
   if (!document->stage_ready(stage)) return true;
   const uint64_t serial = document->stage_serial(stage);
@@ -97,7 +113,7 @@ bool Workbench::State::has_pending_work() const {
 }
 
 void Workbench::State::ask_for_missing_work() {
-  if (!document || !jobs.empty()) return;
+  if (!document || !jobs.empty() || work_stopped) return;
   const size_t stage = document->selected_stage();
   if (!document->stage_ready(stage)) {
     queue(document->make_apply_job(stage), nullptr);
@@ -150,6 +166,7 @@ void Workbench::State::start_loading() {
   open_screen.close();
   cancel_jobs();
   jobs.clear();
+  work_stopped = false;
   queue(std::move(job.value()), [this](wb::Job& done) {
     document = std::make_unique<wb::Document>(static_cast<wb::LoadJob&>(done).take_result());
     recipe_path.clear();
@@ -174,6 +191,7 @@ void Workbench::State::select_stage(size_t stage) {
   if (!document) return;
   document->select_stage(stage);
   view_dirty = true;
+  work_stopped = false;
 }
 
 void Workbench::State::after_edit(const wb::EditOutcome& outcome, std::optional<size_t> select_after) {
@@ -183,6 +201,7 @@ void Workbench::State::after_edit(const wb::EditOutcome& outcome, std::optional<
   }
   if (select_after) document->select_stage(*select_after);
   view_dirty = true;
+  work_stopped = false;
   if (!outcome.problems.empty()) {
     say("The recipe now has a problem: " + outcome.problems.front().message, true);
   } else {
@@ -238,6 +257,7 @@ void Workbench::State::undo() {
   const std::string label = document->undo_label();
   document->undo();
   view_dirty = true;
+  work_stopped = false;
   say("Undid " + label);
 }
 
@@ -246,6 +266,7 @@ void Workbench::State::redo() {
   const std::string label = document->redo_label();
   document->redo();
   view_dirty = true;
+  work_stopped = false;
   say("Redid " + label);
 }
 
@@ -519,9 +540,12 @@ void Workbench::frame() {
   const ImGuiViewport* viewport = ImGui::GetMainViewport();
   ImGui::SetNextWindowPos(viewport->WorkPos);
   ImGui::SetNextWindowSize(viewport->WorkSize);
+  // No background of its own: the shell clears the screen with the window
+  // colour, which saves a full-screen fill per frame (it counts with
+  // software OpenGL).
   const ImGuiWindowFlags flags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove |
                                  ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_MenuBar |
-                                 ImGuiWindowFlags_NoSavedSettings;
+                                 ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoBackground;
   ImGui::Begin("tamis##main", nullptr, flags);
   s.draw_menu();
   if (s.open_screen.active()) {

@@ -3,6 +3,8 @@
 // frame() between ImGui::NewFrame() and ImGui::Render() every frame (the
 // browser from an emscripten_set_main_loop callback). Long work runs in
 // slices inside frame(), so the screen never freezes and no thread is needed.
+// The main window draws no background: the shell clears the frame with
+// ImGui's WindowBg colour first.
 #pragma once
 
 #include <memory>
@@ -44,6 +46,8 @@ class Workbench {
   bool wants_to_quit() const;
   // True while a measure-scroll action scrolls the grid (the shell times frames).
   bool measuring_frames() const;
+  // True once a loaded table is on screen (the shell reports the time).
+  bool showing_table() const;
 
   struct State;
 

@@ -131,6 +131,15 @@ Status Workbench::run_action(std::string_view line) {
     filled.open_new(*spec, at, schema_of(s.document->table_at(at)), &definition);
     return s.add_step(filled.definition(), at);
   }
+  if (verb == "open-form") {
+    nlohmann::json definition = nlohmann::json::parse(rest, nullptr, false);
+    if (definition.is_discarded() || !definition.is_object()) return usage_error("open-form: not a JSON object: " + rest);
+    const StepSpec* spec = find_step_spec(definition.value("op", std::string()));
+    if (!spec) return usage_error("open-form: unknown op");
+    const size_t at = s.document->selected_stage();
+    s.form.open_new(*spec, at, schema_of(s.document->table_at(at)), &definition);
+    return Ok{};
+  }
   if (verb == "select-step") {
     Result<size_t> n = index_arg(0);
     if (!n) return n.take_error();

@@ -74,6 +74,8 @@ struct Workbench::State {
   std::unique_ptr<workbench::Document> document;
   std::string recipe_path;
   std::vector<QueuedJob> jobs;  // the first runs; the rest wait
+  // Set by Cancel: nothing new starts until the next edit, selection or Continue.
+  bool work_stopped = false;
   uint64_t profile_asked_for = 0, findings_asked_for = 0;  // stage serials already queued
 
   // Data panel.
@@ -108,6 +110,8 @@ struct Workbench::State {
   void ask_for_missing_work();
   bool has_pending_work() const;
   void cancel_jobs();
+  // "Stopped" with a Continue button, where a panel waits for work that was cancelled.
+  void draw_waiting(const char* working_text);
 
   // Opening.
   void show_open_browser();
