@@ -168,8 +168,6 @@ void Workbench::State::draw_column_panel() {
     draw_value(*p.max, false);
   }
   if (p.mean && p.std_dev) ImGui::TextDisabled("mean %.4g, standard deviation %.4g", *p.mean, *p.std_dev);
-  ImGui::TextDisabled("length %llu to %llu characters", static_cast<unsigned long long>(p.length_min),
-                      static_cast<unsigned long long>(p.length_max));
 
   const uint64_t serial = document->stage_serial(document->selected_stage());
   if (column_shape.serial != serial || column_shape.column != column) {
@@ -212,7 +210,7 @@ void Workbench::State::draw_column_panel() {
     ImGui::GetWindowDrawList()->AddRectFilled(
         at, ImVec2(at.x + width * share, at.y + ImGui::GetTextLineHeight()), ImGui::GetColorU32(ImGuiCol_Header));
     if (ImGui::Selectable("##value", false, 0, ImVec2(width, ImGui::GetTextLineHeight()))) {
-      filters.push_back(wb::RowFilter{column, wb::FilterKind::equals, value.value});
+      filters.push_back({table->name(column), wb::FilterKind::equals, value.value});
       view_dirty = true;
     }
     if (ImGui::IsItemHovered()) ImGui::SetTooltip("Show only the %s rows with this value.", count_text(value.count).c_str());

@@ -106,6 +106,14 @@ void draw_value(std::string_view value, bool is_null) {
   }
 }
 
+void warning_text(const std::string& text) {
+  ImGui::PushStyleColor(ImGuiCol_Text, palette().error_text);
+  ImGui::PushTextWrapPos(0.0f);
+  ImGui::TextUnformatted(text.c_str());
+  ImGui::PopTextWrapPos();
+  ImGui::PopStyleColor();
+}
+
 DataGrid::Events DataGrid::draw(const GridSource& source, std::optional<size_t> selected_column) {
   Events events;
   const size_t columns = source.column_count();

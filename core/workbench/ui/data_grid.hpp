@@ -73,4 +73,7 @@ EdgeSplit split_edges(std::string_view value);
 // Draws one value with its edges marked (used by the grid and the panels).
 void draw_value(std::string_view value, bool is_null);
 
+// A warning or conflict sentence, wrapped to the panel, in the warning colour.
+void warning_text(const std::string& text);
+
 }  // namespace tamis::ui

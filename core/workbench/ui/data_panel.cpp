@@ -67,17 +67,19 @@ void Workbench::State::refresh_view() {
     if (compiled) date_format = compiled.value();
   }
   if (view_dirty || view_serial != serial) {
-    // Filters naming a column that this stage no longer has are dropped.
-    std::erase_if(filters, [&](const wb::RowFilter& filter) { return filter.column >= table->column_count(); });
-    if (sort && sort->column >= table->column_count()) sort.reset();
+    // Filters and the sort name a column; at a step without it they are dropped.
+    std::vector<wb::RowFilter> row_filters;
+    std::erase_if(filters, [&](const ViewFilter& filter) { return !table->find(filter.column); });
+    for (const ViewFilter& filter : filters) row_filters.push_back({*table->find(filter.column), filter.kind, filter.text});
+    std::vector<wb::SortKey> keys;
+    if (sort && !table->find(sort->column)) sort.reset();
+    if (sort) keys.push_back({*table->find(sort->column), sort->descending});
     if (selected_column && *selected_column >= table->column_count()) selected_column.reset();
     view_is_all = filters.empty() && !sort;
     if (view_is_all) {
       view.clear();
     } else if (date_format) {
-      std::vector<wb::SortKey> keys;
-      if (sort) keys.push_back(*sort);
-      view = wb::make_row_view(*table, filters, keys, *date_format);
+      view = wb::make_row_view(*table, row_filters, keys, *date_format);
     }
     view_serial = serial;
     view_dirty = false;
@@ -129,7 +131,7 @@ void Workbench::State::draw_filter_bar() {
   apply |= ImGui::Button("Filter");
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("Show only matching rows. This changes the view, not the recipe.");
   if (apply) {
-    filters.push_back(new_filter);
+    filters.push_back({table->name(new_filter.column), new_filter.kind, new_filter.text});
     view_dirty = true;
   }
   if (!filters.empty() || sort) {
@@ -142,8 +144,8 @@ void Workbench::State::draw_filter_bar() {
     if (ImGui::IsItemHovered()) ImGui::SetTooltip("Remove every filter and the sort: back to the rows in file order.");
   }
   for (size_t i = 0; i < filters.size(); ++i) {
-    const wb::RowFilter& filter = filters[i];
-    std::string chip = table->name(filter.column) + " " + filter_kind_label(filter.kind);
+    const ViewFilter& filter = filters[i];
+    std::string chip = filter.column + " " + filter_kind_label(filter.kind);
     if (filter_takes_text(filter.kind)) chip += " \"" + filter.text + "\"";
     chip += "  \xC3\x97##chip" + std::to_string(i);  // ×
     if (i > 0) ImGui::SameLine();
@@ -182,7 +184,7 @@ void Workbench::State::draw_data_panel() {
   const DataGrid::Events events = grid.draw(source, selected_column);
   if (events.sort) {
     if (*events.sort) {
-      sort = wb::SortKey{(*events.sort)->column, !(*events.sort)->ascending};
+      sort = ViewSort{table->name((*events.sort)->column), !(*events.sort)->ascending};
     } else {
       sort.reset();
     }

@@ -73,7 +73,7 @@ std::optional<std::string> FileBrowser::draw() {
   ImGui::InputTextWithHint("##narrow", "narrow the list", &filter_);
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("Show only entries whose name contains this text.");
 
-  const float footer = ImGui::GetFrameHeightWithSpacing() * 2.2f;
+  const float footer = ImGui::GetFrameHeightWithSpacing() + ImGui::GetStyle().ItemSpacing.y;
   if (ImGui::BeginChild("##entries", ImVec2(0, -footer), true)) {
     if (!listing_error_.empty()) ImGui::TextColored(ImColor(palette().error_text), "%s", listing_error_.c_str());
     std::optional<std::string> enter_folder;

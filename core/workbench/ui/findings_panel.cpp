@@ -72,7 +72,7 @@ void Workbench::State::draw_findings_panel() {
           }
         }
         for (const std::string& warning : fix.preview.warnings)
-          ImGui::TextColored(ImColor(palette().error_text), "%s", warning.c_str());
+          warning_text(warning);
         if (ImGui::Button("Add step")) {
           if (Status added = add_finding_fix(i, f); !added) say(added.error().message, true);
           ImGui::PopID();

@@ -204,8 +204,8 @@ OpenScreen::Choice OpenScreen::draw() {
   }
   if (changed) refresh_preview();
 
-  if (!error_.empty()) ImGui::TextColored(ImColor(palette().error_text), "%s", error_.c_str());
-  for (const std::string& warning : detected_.warnings()) ImGui::TextColored(ImColor(palette().error_text), "%s", warning.c_str());
+  if (!error_.empty()) warning_text(error_);
+  for (const std::string& warning : detected_.warnings()) warning_text(warning);
 
   ImGui::Spacing();
   if (ImGui::Button("Load")) choice = Choice::load;

@@ -126,7 +126,7 @@ void Workbench::State::draw_changes_panel() {
     ImGui::TextDisabled("made while reading the file");
     const wb::LoadedFile& file = document->file();
     const ReadReport& read = file.read;
-    for (const std::string& warning : read.warnings()) ImGui::TextColored(ImColor(palette().error_text), "%s", warning.c_str());
+    for (const std::string& warning : read.warnings()) warning_text(warning);
     if (file.rejected.empty() && document->input_rejects().empty()) {
       ImGui::TextDisabled("Every record was read as it is. Select a step in the Recipe panel to see what it changed.");
       return;
@@ -148,8 +148,8 @@ void Workbench::State::draw_changes_panel() {
   ImGui::SameLine();
   ImGui::TextDisabled("| rows in %s, out %s | %s", count_text(change.rows_in).c_str(), count_text(change.rows_out).c_str(),
                       change_summary(change).c_str());
-  for (const std::string& conflict : change.conflicts) ImGui::TextColored(ImColor(palette().error_text), "%s", conflict.c_str());
-  for (const std::string& warning : change.warnings) ImGui::TextColored(ImColor(palette().error_text), "%s", warning.c_str());
+  for (const std::string& conflict : change.conflicts) warning_text(conflict);
+  for (const std::string& warning : change.warnings) warning_text(warning);
 
   const float half = ImGui::GetContentRegionAvail().x * 0.5f;
   ImGui::BeginChild("##value-changes", ImVec2(change.removed.empty() ? 0 : half, 0));

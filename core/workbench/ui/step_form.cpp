@@ -436,8 +436,8 @@ void StepForm::draw_preview() {
                                        : "in the first " + plural(preview.rows.end - preview.rows.begin, "row", "rows");
   ImGui::Text("%s changed, %s removed, %s rejected %s.", plural(cells, "cell", "cells").c_str(),
               plural(change.rows_removed, "row", "rows").c_str(), count_text(change.rows_rejected).c_str(), scope.c_str());
-  for (const std::string& conflict : change.conflicts) ImGui::TextColored(ImColor(colours.error_text), "%s", conflict.c_str());
-  for (const std::string& warning : change.warnings) ImGui::TextColored(ImColor(colours.error_text), "%s", warning.c_str());
+  for (const std::string& conflict : change.conflicts) warning_text(conflict);
+  for (const std::string& warning : change.warnings) warning_text(warning);
   if (!change.samples().empty() &&
       ImGui::BeginTable("##preview-samples", 4, ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV |
                                                    ImGuiTableFlags_ScrollY,

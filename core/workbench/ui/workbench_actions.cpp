@@ -62,6 +62,16 @@ Status Workbench::run_action(std::string_view line) {
     if (s.open_screen.active()) return usage_error(s.message);
     return Ok{};
   }
+  if (verb == "key") {
+    // The shortcuts as the shell maps them from key presses.
+    if (rest == "ctrl+o") run_command(Command::open);
+    else if (rest == "ctrl+s") run_command(Command::save);
+    else if (rest == "ctrl+f") run_command(Command::filter);
+    else if (rest == "ctrl+z") run_command(Command::undo);
+    else if (rest == "ctrl+shift+z") run_command(Command::redo);
+    else return usage_error("key: ctrl+o, ctrl+s, ctrl+f, ctrl+z or ctrl+shift+z");
+    return Ok{};
+  }
   if (verb == "theme") {
     if (rest != "light" && rest != "dark") return usage_error("theme is light or dark");
     s.theme = rest == "dark" ? Theme::dark : Theme::light;
@@ -203,7 +213,7 @@ Status Workbench::run_action(std::string_view line) {
     if (!table || arg.size() < 2) return usage_error("filter COLUMN contains|equals|null|empty|not-null|edge-space [TEXT]");
     std::optional<size_t> column = table->find(arg[0]);
     if (!column) return usage_error("filter: no column " + arg[0]);
-    wb::RowFilter filter{*column, wb::FilterKind::contains, {}};
+    ViewFilter filter{arg[0], wb::FilterKind::contains, {}};
     const std::string& kind = arg[1];
     if (kind == "contains") filter.kind = wb::FilterKind::contains;
     else if (kind == "equals") filter.kind = wb::FilterKind::equals;
@@ -223,7 +233,7 @@ Status Workbench::run_action(std::string_view line) {
     if (!table || arg.empty()) return usage_error("sort COLUMN [desc]");
     std::optional<size_t> column = table->find(arg[0]);
     if (!column) return usage_error("sort: no column " + arg[0]);
-    s.sort = wb::SortKey{*column, arg.size() > 1 && arg[1] == "desc"};
+    s.sort = ViewSort{arg[0], arg.size() > 1 && arg[1] == "desc"};
     s.view_dirty = true;
     return Ok{};
   }

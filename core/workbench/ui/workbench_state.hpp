@@ -46,6 +46,18 @@ struct ColumnShape {
   size_t longest_shown = 0;
 };
 
+// A filter or sort of the Data view names its column, so it keeps meaning
+// the same column when another step is selected (columns move, appear and go).
+struct ViewFilter {
+  std::string column;
+  workbench::FilterKind kind = workbench::FilterKind::contains;
+  std::string text;
+};
+struct ViewSort {
+  std::string column;
+  bool descending = false;
+};
+
 struct SimilarPanelState {
   size_t column = 0;
   SimilarMethod method = SimilarMethod::token_key;
@@ -80,8 +92,8 @@ struct Workbench::State {
 
   // Data panel.
   DataGrid grid;
-  std::vector<workbench::RowFilter> filters;
-  std::optional<workbench::SortKey> sort;
+  std::vector<ViewFilter> filters;
+  std::optional<ViewSort> sort;
   std::vector<size_t> view;  // rows of the shown stage, after filters and sort
   bool view_is_all = true;   // no filter, no sort: the view is every row in order
   uint64_t view_serial = 0;  // stage serial the view was made for
@@ -90,7 +102,7 @@ struct Workbench::State {
   std::unique_ptr<workbench::StepDiff> diff;  // cells changed by the selected step
   uint64_t diff_serial = 0;
   bool focus_filter = false;
-  workbench::RowFilter new_filter;
+  workbench::RowFilter new_filter;  // the filter bar's fields
   std::optional<DateFormat> date_format;
 
   SidePanel side = SidePanel::findings;
