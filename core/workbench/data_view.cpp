@@ -96,14 +96,49 @@ CellText cell_text(const Table& table, size_t row, size_t column, const DateForm
   return cell;
 }
 
-std::vector<size_t> make_row_view(const Table& table, std::span<const RowFilter> filters,
-                                  std::span<const SortKey> keys, const DateFormat& date_format) {
-  const size_t rows = table.row_count();
-  std::vector<char> keep(rows, 1);
-  std::string canonical;
-  for (const RowFilter& filter : filters) {
-    if (filter.column >= table.column_count()) continue;
+struct RowViewJob::State {
+  State(Table table, std::vector<RowFilter> filters, std::vector<SortKey> keys, DateFormat date_format)
+      : table(std::move(table)), filters(std::move(filters)), keys(std::move(keys)), date_format(std::move(date_format)),
+        keep(this->table.row_count(), 1) {}
+  Table table;
+  std::vector<RowFilter> filters;
+  std::vector<SortKey> keys;
+  DateFormat date_format;
+
+  // Per-key sort values gathered once, so the comparisons index plain vectors.
+  struct KeyValues {
+    bool descending;
+    bool text;
+    std::vector<std::string_view> texts;
+    std::vector<int64_t> numbers;
+    std::vector<char> nulls;
+  };
+  std::vector<KeyValues> values;
+  std::vector<char> keep;
+  std::vector<size_t> view, buffer;
+  size_t next_filter = 0, next_key = 0;
+  size_t next_run = 0;   // runs of kRun rows sorted so far
+  size_t width = 0;      // merge pass: sorted runs have this length
+  size_t next_pair = 0;  // start of the next pair of runs to merge in this pass
+  bool listed = false, done = false;
+  static constexpr size_t kRun = 4096;
+
+  bool less(size_t a, size_t b) const {
+    for (const KeyValues& kv : values) {
+      if (kv.nulls[a] != kv.nulls[b]) return kv.nulls[b] != 0;  // NULL last in either direction
+      if (kv.nulls[a]) continue;
+      int order = 0;
+      if (kv.text) order = kv.texts[a].compare(kv.texts[b]);  // UTF-8 byte order is code point order
+      else order = kv.numbers[a] < kv.numbers[b] ? -1 : (kv.numbers[a] > kv.numbers[b] ? 1 : 0);
+      if (order != 0) return kv.descending ? order > 0 : order < 0;
+    }
+    return false;
+  }
+
+  void apply_filter(const RowFilter& filter) {
+    if (filter.column >= table.column_count()) return;
     const Column& column = table.column(filter.column);
+    std::string canonical;
     for_each_cell(column, [&](size_t row, const ColumnChunk& chunk, size_t i) {
       if (!keep[row]) return;
       const bool null = chunk.is_null(i);
@@ -130,24 +165,11 @@ std::vector<size_t> make_row_view(const Table& table, std::span<const RowFilter>
       keep[row] = pass;
     });
   }
-  std::vector<size_t> view;
-  view.reserve(rows);
-  for (size_t r = 0; r < rows; ++r)
-    if (keep[r]) view.push_back(r);
-  if (keys.empty()) return view;
 
-  // Per-key sort values gathered once, so the comparisons index plain vectors.
-  struct KeyValues {
-    bool descending;
-    bool text;
-    std::vector<std::string_view> texts;
-    std::vector<int64_t> numbers;
-    std::vector<char> nulls;
-  };
-  std::vector<KeyValues> values;
-  for (const SortKey& key : keys) {
-    if (key.column >= table.column_count()) continue;
+  void gather_key(const SortKey& key) {
+    if (key.column >= table.column_count()) return;
     const Column& column = table.column(key.column);
+    const size_t rows = table.row_count();
     KeyValues kv{key.descending, column.type() == Type::text, {}, {}, std::vector<char>(rows, 0)};
     if (kv.text) kv.texts.resize(rows);
     else kv.numbers.resize(rows);
@@ -161,18 +183,117 @@ std::vector<size_t> make_row_view(const Table& table, std::span<const RowFilter>
     });
     values.push_back(std::move(kv));
   }
-  std::stable_sort(view.begin(), view.end(), [&](size_t a, size_t b) {
-    for (const KeyValues& kv : values) {
-      if (kv.nulls[a] != kv.nulls[b]) return kv.nulls[b] != 0;  // NULL last in either direction
-      if (kv.nulls[a]) continue;
-      int order = 0;
-      if (kv.text) order = kv.texts[a].compare(kv.texts[b]);  // UTF-8 byte order is code point order
-      else order = kv.numbers[a] < kv.numbers[b] ? -1 : (kv.numbers[a] > kv.numbers[b] ? 1 : 0);
-      if (order != 0) return kv.descending ? order > 0 : order < 0;
+
+  // One unit of work; returns the rows it touched.
+  size_t advance() {
+    const size_t rows = table.row_count();
+    if (next_filter < filters.size()) {
+      apply_filter(filters[next_filter++]);
+      return rows;
     }
-    return false;
-  });
-  return view;
+    if (!listed) {
+      view.reserve(rows);
+      for (size_t r = 0; r < rows; ++r)
+        if (keep[r]) view.push_back(r);
+      keep = {};
+      listed = true;
+      return rows;
+    }
+    if (next_key < keys.size()) {
+      gather_key(keys[next_key++]);
+      return rows;
+    }
+    auto by_key = [this](size_t a, size_t b) { return less(a, b); };
+    const size_t n = view.size();
+    if (values.empty() || n < 2) {
+      done = true;
+      return 1;
+    }
+    // Bottom-up merge sort: stable, and every unit of work is bounded.
+    if (next_run * kRun < n) {
+      const size_t lo = next_run++ * kRun;
+      std::stable_sort(view.begin() + static_cast<std::ptrdiff_t>(lo),
+                       view.begin() + static_cast<std::ptrdiff_t>(std::min(n, lo + kRun)), by_key);
+      return kRun;
+    }
+    if (width == 0) {
+      width = kRun;
+      buffer.resize(n);
+    }
+    if (width >= n) {
+      buffer = {};
+      done = true;
+      return 1;
+    }
+    const size_t lo = next_pair;
+    const size_t mid = std::min(n, lo + width), hi = std::min(n, lo + 2 * width);
+    const auto at = [](std::vector<size_t>& v, size_t i) { return v.begin() + static_cast<std::ptrdiff_t>(i); };
+    std::merge(at(view, lo), at(view, mid), at(view, mid), at(view, hi), at(buffer, lo), by_key);
+    next_pair = hi;
+    if (next_pair >= n) {
+      view.swap(buffer);
+      width *= 2;
+      next_pair = 0;
+    }
+    return hi - lo;
+  }
+};
+
+RowViewJob::RowViewJob(Table table, std::vector<RowFilter> filters, std::vector<SortKey> keys,
+                       DateFormat date_format)
+    : state_(std::make_unique<State>(std::move(table), std::move(filters), std::move(keys), std::move(date_format))) {}
+
+RowViewJob::~RowViewJob() = default;
+
+bool RowViewJob::step(size_t budget) {
+  State& s = *state_;
+  if (cancelled()) return true;
+  // A unit touches about one cell per row: the budget counts cells.
+  size_t spent = 0;
+  while (!s.done && spent < budget) spent += s.advance();
+  return s.done;
+}
+
+double RowViewJob::progress() const {
+  const State& s = *state_;
+  if (s.done) return 1.0;
+  const size_t n = std::max<size_t>(s.view.size(), 1);
+  double passes = 1.0;
+  for (size_t w = State::kRun; w < n; w *= 2) passes += 1.0;
+  const double prepare = static_cast<double>(s.next_filter + s.listed + s.next_key);
+  const double prepare_total = static_cast<double>(s.filters.size() + 1 + s.keys.size());
+  double sorted = 0.0;
+  if (s.width != 0) {
+    double done_passes = 1.0;
+    for (size_t w = State::kRun; w < s.width; w *= 2) done_passes += 1.0;
+    sorted = (done_passes + static_cast<double>(s.next_pair) / static_cast<double>(n)) / passes;
+  } else if (s.listed && s.next_key == s.keys.size()) {
+    sorted = std::min(1.0, static_cast<double>(s.next_run * State::kRun) / static_cast<double>(n)) / passes;
+  }
+  return 0.3 * prepare / prepare_total + 0.7 * sorted;
+}
+
+std::string RowViewJob::label() const { return state_->keys.empty() ? "Filtering rows" : "Sorting rows"; }
+
+std::vector<size_t> RowViewJob::take_result() { return std::move(state_->view); }
+
+std::vector<size_t> make_row_view(const Table& table, std::span<const RowFilter> filters,
+                                  std::span<const SortKey> keys, const DateFormat& date_format) {
+  RowViewJob job(table, std::vector<RowFilter>(filters.begin(), filters.end()),
+                 std::vector<SortKey>(keys.begin(), keys.end()), date_format);
+  run_to_end(job);
+  return job.take_result();
+}
+
+std::optional<size_t> row_of_line(const Table& table, uint64_t line) {
+  size_t lo = 0, hi = table.row_count();
+  while (lo < hi) {
+    const size_t mid = lo + (hi - lo) / 2;
+    if (table.source_line(mid) < line) lo = mid + 1;
+    else hi = mid;
+  }
+  if (lo < table.row_count() && table.source_line(lo) == line) return lo;
+  return std::nullopt;
 }
 
 StepDiff::StepDiff(Table before, Table after) : before_(std::move(before)), after_(std::move(after)) {

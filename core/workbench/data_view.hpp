@@ -7,11 +7,14 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <memory>
+#include <optional>
 #include <span>
 #include <string>
 #include <vector>
 
 #include "dates.hpp"
+#include "job.hpp"
 #include "table.hpp"
 
 namespace tamis::workbench {
@@ -54,6 +57,28 @@ struct SortKey {
 // keep source order). No keys and no filters: every row in order.
 std::vector<size_t> make_row_view(const Table& table, std::span<const RowFilter> filters,
                                   std::span<const SortKey> keys, const DateFormat& date_format);
+
+// The same view in slices, for a big table (sorting a million rows takes
+// longer than a frame). The job keeps its own copy of the table.
+class RowViewJob final : public Job {
+ public:
+  RowViewJob(Table table, std::vector<RowFilter> filters, std::vector<SortKey> keys, DateFormat date_format);
+  ~RowViewJob() override;
+  bool step(size_t budget) override;
+  double progress() const override;
+  std::string label() const override;
+  // The view once step() returned true (not cancelled).
+  std::vector<size_t> take_result();
+
+ private:
+  struct State;
+  std::unique_ptr<State> state_;
+};
+
+// The row whose record starts at source line `line` (rows keep source
+// order, so the lines ascend): for the Changes panel's removed rows, looked
+// up in the table before the step.
+std::optional<size_t> row_of_line(const Table& table, uint64_t line);
 
 // Which cells of a stage a step changed: rows are matched by source line
 // (steps never reorder rows), columns by name. A column the step created

@@ -23,11 +23,25 @@ std::string key_of(const std::string& message) {
   return message.substr(open + 3, close - open - 3);
 }
 
+// Expression errors say "at character N: " (core/engine/expr/lexer.cpp).
+std::optional<size_t> character_of(const std::string& message) {
+  static constexpr std::string_view kMarker = "at character ";
+  const size_t at = message.find(kMarker);
+  if (at == std::string::npos) return std::nullopt;
+  size_t value = 0;
+  size_t i = at + kMarker.size();
+  const size_t digits_start = i;
+  while (i < message.size() && message[i] >= '0' && message[i] <= '9') value = value * 10 + static_cast<size_t>(message[i++] - '0');
+  if (i == digits_start) return std::nullopt;
+  return value;
+}
+
 StepProblem problem_of(const Error& error, std::optional<size_t> step) {
   StepProblem p;
   p.step = error.step ? std::optional<size_t>(static_cast<size_t>(*error.step)) : step;
   p.key = key_of(error.message);
   p.message = error.message;
+  p.character = character_of(error.message);
   return p;
 }
 
@@ -82,6 +96,29 @@ Table without_rows(const Table& table, const std::vector<size_t>& dropped) {
 
 json to_plain_json(const nlohmann::ordered_json& j) { return json::parse(j.dump()); }
 
+// Where the recipe's input section would read the file differently from how
+// it was opened: `tamis run` would then see other records or columns.
+std::vector<StepProblem> dialect_problems(const RecipeInput& input, const ReadReport& read) {
+  std::vector<StepProblem> out;
+  auto shown = [](char c) { return c == '\t' ? std::string("tab") : "'" + std::string(1, c) + "'"; };
+  if (input.delimiter && *input.delimiter != read.delimiter)
+    out.push_back({std::nullopt, "delimiter",
+                   "input.delimiter: the recipe reads fields separated by " + shown(*input.delimiter) +
+                       ", but this file was opened with " + shown(read.delimiter)});
+  if (input.header && *input.header != read.header)
+    out.push_back({std::nullopt, "header",
+                   std::string("input.header: the recipe expects ") + (*input.header ? "a" : "no") +
+                       " header row, but this file was opened " + (read.header ? "with" : "without") + " one"});
+  if (input.encoding) {
+    const auto expected = encoding_from_name(*input.encoding);
+    if (expected && *expected != read.encoding)
+      out.push_back({std::nullopt, "encoding",
+                     "input.encoding: the recipe reads " + *input.encoding + ", but this file was opened as " +
+                         std::string(encoding_name(read.encoding))});
+  }
+  return out;
+}
+
 }  // namespace
 
 nlohmann::ordered_json similar_values_step(std::string_view column, std::span<const SimilarChoice> choices) {
@@ -103,9 +140,12 @@ struct Document::State {
     std::shared_ptr<const Step> step;  // parsed against the columns it sees (also when disabled)
     std::optional<StepProblem> problem;
   };
+  // A computed stage keeps its serial and schema when its table is evicted;
+  // recomputing it gives the same table (steps are deterministic).
   struct Stage {
     std::optional<Table> table;
-    uint64_t serial = 0;
+    uint64_t serial = 0;  // 0: not computed for the current recipe
+    Schema schema;
   };
   struct Snapshot {
     std::string label;
@@ -113,7 +153,7 @@ struct Document::State {
     Recipe after;
   };
 
-  std::optional<StepProblem> input_problem;
+  std::vector<StepProblem> input_problems;
   std::vector<RemovedRow> input_rejects;
   uint64_t input_rejected = 0;
   std::vector<Slot> slots;
@@ -134,7 +174,7 @@ struct Document::State {
   static void compute_input(Document& d) {
     State& s = *d.state_;
     const Table& raw = d.file_.table;
-    s.input_problem.reset();
+    s.input_problems = dialect_problems(d.recipe_.input, d.file_.read);
     s.input_rejects.clear();
     s.input_rejected = 0;
     auto keep = check_input_columns(d.recipe_.input, raw.names(), d.file_.name);
@@ -142,7 +182,7 @@ struct Document::State {
     if (!keep) {
       // Shown as far as it goes: the expected columns the file has when the
       // others are to be ignored, else every column.
-      s.input_problem = StepProblem{std::nullopt, "columns", keep.error().message};
+      s.input_problems.push_back(StepProblem{std::nullopt, "columns", keep.error().message});
       const RecipeInput& in = d.recipe_.input;
       for (size_t c = 0; c < raw.column_count(); ++c)
         if (in.unknown_columns != "ignore" ||
@@ -184,7 +224,8 @@ struct Document::State {
       s.input_rejected = dropped.size();
       if (!dropped.empty()) table = without_rows(table, dropped);
     }
-    s.stages.assign(1, Stage{std::move(table), s.next_serial++});
+    Schema schema = schema_of(table);
+    s.stages.assign(1, Stage{std::move(table), s.next_serial++, std::move(schema)});
   }
 
   static void compile_all(Document& d) {
@@ -244,23 +285,52 @@ struct Document::State {
   }
 
   bool ready(size_t stage) const { return stage < stages.size() && stages[stage].table.has_value(); }
+  bool computed(size_t stage) const { return stage < stages.size() && stages[stage].serial != 0; }
+  // The highest stage at or below `stage` whose table is at hand (stage 0 always is).
+  size_t nearest_ready(size_t stage) const {
+    while (stage > 0 && !ready(stage)) --stage;
+    return stage;
+  }
 
-  // Stores what step i made of its input (or passes the input through).
+  // Drops the tables of stages nobody looks at: a long recipe on a big file
+  // would otherwise keep one table per step. Kept: the file (stage 0), the
+  // selected stage and the one before it (the Data panel's diff), the result,
+  // and `working` (the input of the next step being computed).
+  static void evict(Document& d, size_t working) {
+    State& s = *d.state_;
+    const size_t last = d.recipe_.steps.size();
+    for (size_t stage = 1; stage < s.stages.size(); ++stage) {
+      if (stage == working || stage == last || stage == d.selected_ || stage + 1 == d.selected_) continue;
+      s.stages[stage].table.reset();
+    }
+  }
+
+  // Stores what step i made of its input (or passes the input through),
+  // then evicts the tables no longer needed. A stage computed before (and
+  // evicted since) only gets its table back.
   static void store(Document& d, size_t i, std::optional<Table> out, ChangeRecord change,
                     std::optional<Error> error) {
     State& s = *d.state_;
     const Stage& in = s.stages[i];
-    s.run_problems[i].reset();
-    if (error) s.run_problems[i] = problem_of(*error, i);
-    if (!out || error) {
-      ChangeRecord unchanged;
-      unchanged.rows_in = unchanged.rows_out = in.table->row_count();
-      s.changes[i] = std::move(unchanged);
-      s.stages[i + 1] = Stage{in.table, in.serial};
-      return;
+    Stage& next = s.stages[i + 1];
+    const bool failed = !out || error;
+    if (next.serial != 0) {
+      next.table = failed ? in.table : std::move(out);
+    } else {
+      s.run_problems[i].reset();
+      if (error) s.run_problems[i] = problem_of(*error, i);
+      if (failed) {
+        ChangeRecord unchanged;
+        unchanged.rows_in = unchanged.rows_out = in.table->row_count();
+        s.changes[i] = std::move(unchanged);
+        next = Stage{in.table, in.serial, in.schema};
+      } else {
+        s.changes[i] = std::move(change);
+        Schema schema = schema_of(*out);
+        next = Stage{std::move(out), s.next_serial++, std::move(schema)};
+      }
     }
-    s.changes[i] = std::move(change);
-    s.stages[i + 1] = Stage{std::move(out), s.next_serial++};
+    evict(d, i + 1);
   }
 
   // A step that does nothing here: disabled, or it does not fit.
@@ -269,7 +339,8 @@ struct Document::State {
 
 namespace {
 
-// Computes the missing stages up to a target, one step at a time in slices.
+// Brings the table of a target stage to hand, one step at a time in slices,
+// from the nearest earlier stage whose table is at hand.
 class ApplyJob final : public Job {
  public:
   ApplyJob(Document& d, Document::State& s, std::optional<size_t> through)
@@ -280,13 +351,14 @@ class ApplyJob final : public Job {
     if (d_.revision() != revision_) {
       runner_.reset();
       revision_ = d_.revision();
+      first_ready_.reset();
     }
     for (;;) {
-      const size_t target = std::min(through_.value_or(d_.step_count()), d_.step_count());
-      size_t stage = 1;
-      while (stage <= target && s_.ready(stage)) ++stage;
-      if (stage > target) return true;
-      const size_t i = stage - 1;
+      const size_t target = this->target();
+      const size_t from = s_.nearest_ready(target);
+      if (!first_ready_) first_ready_ = from;
+      if (from == target) return true;
+      const size_t i = from;  // step i turns stage i into stage i + 1
       if (s_.passes_through(d_, i)) {
         Document::State::store(d_, i, std::nullopt, {}, std::nullopt);
         continue;
@@ -300,17 +372,17 @@ class ApplyJob final : public Job {
       Document::State::store(d_, i, runner_->take_output(), runner_->take_change(), runner_->error());
       runner_.reset();
       // One step's work per slice: the next step starts in the next slice.
-      return target_done();
+      return s_.ready(target);
     }
   }
 
   double progress() const override {
-    const size_t target = std::min(through_.value_or(d_.step_count()), d_.step_count());
-    if (target == 0) return 1.0;
-    size_t ready = 0;
-    for (size_t stage = 1; stage <= target; ++stage) ready += s_.ready(stage);
+    const size_t target = this->target();
+    const size_t from = s_.nearest_ready(target);
+    const size_t start = std::min(first_ready_.value_or(from), from);
+    if (from >= target) return 1.0;
     const double partial = runner_ ? runner_->progress() : 0.0;
-    return std::min(1.0, (static_cast<double>(ready) + partial) / static_cast<double>(target));
+    return std::min(1.0, (static_cast<double>(from - start) + partial) / static_cast<double>(target - start));
   }
 
   std::string label() const override {
@@ -319,17 +391,13 @@ class ApplyJob final : public Job {
   }
 
  private:
-  bool target_done() const {
-    const size_t target = std::min(through_.value_or(d_.step_count()), d_.step_count());
-    for (size_t stage = 1; stage <= target; ++stage)
-      if (!s_.ready(stage)) return false;
-    return true;
-  }
+  size_t target() const { return std::min(through_.value_or(d_.step_count()), d_.step_count()); }
 
   Document& d_;
   Document::State& s_;
   std::optional<size_t> through_;
   uint64_t revision_;
+  std::optional<size_t> first_ready_;
   std::shared_ptr<const Step> step_;
   std::unique_ptr<StepRunner> runner_;
   size_t runner_step_ = 0;
@@ -347,10 +415,11 @@ class StageJob : public Job {
       error_ = usage_error("the step this job was for has been deleted");
       return true;
     }
-    if (!apply_.step(budget)) return false;
-    const uint64_t serial = d_.stage_serial(stage_);
-    if (serial != serial_) {
-      serial_ = serial;
+    // The work holds its own copy of the table: once started, it goes on
+    // even if the stage's table is dropped, unless the stage itself changed.
+    if (serial_ == 0 || d_.stage_serial(stage_) != serial_) {
+      if (!apply_.step(budget)) return false;
+      serial_ = d_.stage_serial(stage_);
       start(*s_.stages[stage_].table);
     }
     done_ = work(budget);
@@ -512,7 +581,15 @@ Document::~Document() = default;
 bool Document::stage_ready(size_t stage) const { return state_->ready(stage); }
 
 uint64_t Document::stage_serial(size_t stage) const {
-  return state_->ready(stage) ? state_->stages[stage].serial : 0;
+  return state_->computed(stage) ? state_->stages[stage].serial : 0;
+}
+
+bool Document::step_computed(size_t step) const { return state_->computed(step + 1); }
+
+Schema Document::schema_at(size_t stage) const {
+  stage = std::min(stage, step_count());
+  if (state_->computed(stage)) return state_->stages[stage].schema;
+  return state_->schema_before[stage];
 }
 
 const Table& Document::table_at(size_t stage) {
@@ -525,7 +602,7 @@ const Table& Document::table_at(size_t stage) {
 }
 
 const ChangeRecord& Document::change(size_t step) {
-  table_at(step + 1);
+  if (!state_->computed(step + 1)) table_at(step + 1);
   return state_->changes[step];
 }
 
@@ -543,7 +620,7 @@ std::optional<StepProblem> Document::step_problem(size_t step) const {
 
 std::vector<StepProblem> Document::problems() const {
   std::vector<StepProblem> out;
-  if (state_->input_problem) out.push_back(*state_->input_problem);
+  out = state_->input_problems;
   for (size_t i = 0; i < step_count(); ++i)
     if (recipe_.steps[i].enabled)
       if (auto p = step_problem(i)) out.push_back(*p);
@@ -579,7 +656,8 @@ EditOutcome Document::add_step(Preview&& preview) {
   EditOutcome outcome = add_step(preview.definition, at);
   if (outcome && reusable && state_->slots[at].step && recipe_.steps[at].enabled) {
     state_->changes[at] = std::move(preview.change);
-    state_->stages[at + 1] = State::Stage{std::move(preview.after), state_->next_serial++};
+    Schema schema = schema_of(preview.after);
+    state_->stages[at + 1] = State::Stage{std::move(preview.after), state_->next_serial++, std::move(schema)};
   }
   return outcome;
 }
@@ -693,6 +771,7 @@ Preview preview_on(const Table& input, uint64_t serial, const nlohmann::json& de
     return p;
   }
   p.description = (*step)->describe();
+  p.depends_on_other_rows = (*step)->needs_first_pass() || (*step)->start() != nullptr;
   p.rows = {std::min(rows.begin, input.row_count()), std::min(rows.end, input.row_count())};
   p.complete = p.rows.begin == 0 && p.rows.end == input.row_count();
   p.before = slice_rows(input, p.rows.begin, p.rows.end);
@@ -722,6 +801,7 @@ struct Document::PreviewJob::Impl {
   size_t position;
   ApplyJob apply;
   uint64_t serial = 0;
+  Table input;
   std::shared_ptr<const Step> step;
   std::unique_ptr<StepRunner> runner;
   Preview result;
@@ -742,15 +822,15 @@ bool Document::PreviewJob::step(size_t budget) {
     error_ = usage_error("the recipe changed: the position of this preview no longer exists");
     return true;
   }
-  if (!m.apply.step(budget)) return false;
-  const Table& input = *m.d.state_->stages[m.position].table;
-  const uint64_t serial = m.d.stage_serial(m.position);
-  if (serial != m.serial) {
-    m.serial = serial;
+  if (m.serial == 0 || m.d.stage_serial(m.position) != m.serial) {
+    if (!m.apply.step(budget)) return false;
+    const Table& input = *m.d.state_->stages[m.position].table;
+    m.serial = m.d.stage_serial(m.position);
+    m.input = input;
     m.result = Preview{};
     m.result.position = m.position;
     m.result.definition = m.definition;
-    m.result.input_serial = serial;
+    m.result.input_serial = m.serial;
     m.runner.reset();
     auto step = parse_step(m.definition, static_cast<int>(m.position), schema_of(input));
     if (!step) {
@@ -760,9 +840,11 @@ bool Document::PreviewJob::step(size_t budget) {
     }
     m.step = std::shared_ptr<const Step>(std::move(*step));
     m.result.description = m.step->describe();
+    m.result.depends_on_other_rows = m.step->needs_first_pass() || m.step->start() != nullptr;
     m.runner = std::make_unique<StepRunner>(*m.step, input);
   }
   if (!m.runner->advance(budget)) return false;
+  const Table& input = m.input;
   if (m.runner->error()) {
     m.result.problem = problem_of(*m.runner->error(), m.position);
   } else {

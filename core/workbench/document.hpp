@@ -13,9 +13,17 @@
 // first step it changes. table_at() computes what is missing at once (tests,
 // small files); the shells instead check stage_ready() and run
 // make_apply_job() in slices. Tables share their unchanged columns
-// (copy-on-write), so keeping every stage costs only what the steps changed.
+// (copy-on-write). To bound memory on big files, only these tables stay at
+// hand: the file (stage 0), the selected stage and the one before it, and
+// the result; the others are dropped once computed (their change records,
+// serial and schema stay) and recomputed when asked for.
 //
-// Threads: a Document and the jobs it makes belong to one thread at a time.
+// Opening a recipe checks its input section against the file as opened
+// (delimiter, header, encoding, expected columns): a difference is a problem
+// of the input section, since `tamis run` would read the file differently.
+//
+// Threads: a Document and the jobs it makes belong to one thread at a time,
+// and the jobs must not outlive it.
 // A shell that steps a job on a worker thread must not touch the document
 // until the job has ended. An edit made between two slices is safe: jobs
 // notice it and carry on with the new recipe.
@@ -46,6 +54,9 @@ struct StepProblem {
   std::optional<size_t> step;  // 0-based recipe index; nullopt: the input section
   std::string key;             // the parameter at fault ("column", "map", ...); empty when none is named
   std::string message;         // the engine's message, naming step, key and what was expected
+  // For SQL expressions (keep_rows, drop_rows, derive_column): the 1-based
+  // character of the parameter's text where the problem is.
+  std::optional<size_t> character = std::nullopt;
 };
 
 // The result of an edit command. Commands that take step parameters (add,
@@ -71,6 +82,10 @@ struct Preview {
   std::string description;             // the step's plain sentence
   RowRange rows;                       // the input rows covered
   bool complete = false;               // covers every row: the counts are final
+  // The step's result on a row depends on other rows (deduplicate,
+  // fill_from_group, carry_forward, some require rules): a window preview
+  // can differ from the complete one beyond its counts.
+  bool depends_on_other_rows = false;
   Table before;                        // the covered input rows
   Table after;                         // what the step made of them
   ChangeRecord change;
@@ -111,9 +126,17 @@ class Document {
   uint64_t revision() const { return revision_; }
 
   // --- Stages and what each step did (computed now when missing) ---
+  // The reference stays valid until the next edit or computation; copy the
+  // Table (cheap, copy-on-write) to keep it longer.
   const Table& table_at(size_t stage);
   const Table& result() { return table_at(step_count()); }
+  // The stage's table is at hand: table_at(stage) returns at once.
   bool stage_ready(size_t stage) const;
+  // The step has been computed: change(step) returns at once, even when the
+  // table after it has been dropped since.
+  bool step_computed(size_t step) const;
+  // The columns of a stage (as computed, else as the steps declare them).
+  Schema schema_at(size_t stage) const;
   // What step `step` changed; an empty record for a disabled or failing step.
   const ChangeRecord& change(size_t step);
   // The step's plain sentence (or its op and problem when it does not fit).
@@ -130,7 +153,8 @@ class Document {
   // --- Selection: the stage shown in the Data, Column, Findings panels ---
   size_t selected_stage() const { return selected_; }
   void select_stage(size_t stage);
-  // Identifies the computed table of a stage; 0 when not computed.
+  // Identifies the computed table of a stage (kept when its table is
+  // dropped and recomputed); 0 when not computed.
   uint64_t stage_serial(size_t stage) const;
 
   // --- Editing (undoable) ---

@@ -174,6 +174,12 @@ TEST_CASE("unit_workbench: edit validation errors name the step and the key and 
   REQUIRE(unknown_op.problems.size() == 1);
   CHECK(unknown_op.problems[0].message.find("unknown op 'shuffle'") != std::string::npos);
 
+  // "name = = 'x'": the second '=' is character 8 (1-based).
+  EditOutcome bad_expression = doc->add_step({{"op", "keep_rows"}, {"where", "name = = 'x'"}});
+  REQUIRE(bad_expression.problems.size() == 1);
+  CHECK(bad_expression.problems[0].key == "where");
+  CHECK(bad_expression.problems[0].character == std::optional<size_t>(8));
+
   CHECK(doc->revision() == revision);
   CHECK(recipe_text(*doc) == recipe_before);
   CHECK(doc->undo_label() == "add deduplicate");
@@ -222,6 +228,20 @@ TEST_CASE("unit_workbench: opening a recipe that no longer fits reports the step
   CHECK(doc->result().column(0).text(0) == "Ada");
   // unknown_columns "ignore": of the expected columns, the file has only name.
   CHECK(doc->result().names() == std::vector<std::string>{"name"});
+
+  // A recipe for another dialect would read this file differently.
+  EditOutcome other_dialect = doc->open_recipe(
+      R"({"tamis_recipe": 1, "input": {"delimiter": ";", "header": false, "encoding": "windows-1252"}, "steps": []})",
+      "semicolons.json");
+  CHECK(other_dialect.applied);
+  REQUIRE(other_dialect.problems.size() == 3);
+  CHECK(other_dialect.problems[0].key == "delimiter");
+  CHECK(other_dialect.problems[0].message.find("';'") != std::string::npos);
+  CHECK(other_dialect.problems[1].key == "header");
+  CHECK(other_dialect.problems[2].key == "encoding");
+  CHECK_FALSE(other_dialect.problems[2].step.has_value());
+  REQUIRE(doc->undo());
+  CHECK(doc->problems().size() == 3);  // back to the recipe with the missing district
 
   EditOutcome broken = doc->open_recipe("{\"tamis_recipe\": 1, \"steps\": [", "broken.json");
   CHECK_FALSE(broken.applied);

@@ -251,3 +251,50 @@ TEST_CASE("unit_workbench_jobs: typed stages are profiled and searched through t
   CHECK(planted.nulls == t.row_count() - planted.non_blank);
   for (const Finding& f : *doc.findings()) CHECK(f.kind != "dates_as_text");
 }
+
+TEST_CASE("unit_workbench_jobs: only the file, the selected stages and the result keep their tables") {
+  const Recipe recipe = demo_recipe();
+  Document doc(demo_in_small_chunks());
+  REQUIRE(doc.replace_recipe(recipe).applied);
+  const size_t n = doc.step_count();
+  REQUIRE(n > 8);
+  (void)doc.result();
+  CHECK(doc.stage_ready(0));
+  CHECK(doc.stage_ready(n));
+  for (size_t stage = 1; stage < n; ++stage) {
+    CAPTURE(stage);
+    CHECK_FALSE(doc.stage_ready(stage));
+    CHECK(doc.step_computed(stage - 1));
+    CHECK(doc.stage_serial(stage) != 0);
+  }
+  // Counts and schemas come without recomputing.
+  const uint64_t read_dates = doc.change(8).cells_changed.at("planted_on");
+  CHECK(read_dates > 0);
+  CHECK_FALSE(doc.stage_ready(9));
+
+  // A dropped stage comes back the same, with the same serial.
+  auto expected_at = [&](size_t stage) {
+    Recipe first = recipe;
+    first.steps.resize(stage);
+    auto compiled = compile_recipe(first, schema_of(doc.table_at(0)));
+    REQUIRE(compiled.ok());
+    auto table = apply_recipe(*compiled, doc.table_at(0));
+    REQUIRE(table.ok());
+    return std::move(table).value();
+  };
+  const uint64_t serial5 = doc.stage_serial(5);
+  const Table expected5 = expected_at(5);
+  CHECK(doc.schema_at(5).size() == expected5.column_count());
+  CHECK(doc.schema_at(9)[*expected_at(9).find("planted_on")].type == Type::date);
+  CHECK(tamis::test::exact_difference(expected5, doc.table_at(5)) == "");
+  CHECK(doc.stage_serial(5) == serial5);
+  CHECK(doc.change(8).cells_changed.at("planted_on") == read_dates);
+
+  doc.select_stage(8);
+  (void)doc.table_at(8);
+  CHECK(doc.stage_ready(7));  // the one before the selection (for the Data panel's diff)
+  CHECK(doc.stage_ready(8));
+  CHECK_FALSE(doc.stage_ready(5));
+  CHECK(doc.stage_ready(n));
+  CHECK(tamis::test::exact_difference(expected_at(8), doc.table_at(8)) == "");
+}

@@ -27,7 +27,7 @@ std::vector<std::string> column_in_view(const Table& t, size_t column, const std
 
 }  // namespace
 
-TEST_CASE("unit_workbench_view: NULL and empty text are told apart; white space at the ends is visible") {
+TEST_CASE("unit_workbench_view: NULL and empty text are told apart, white space at the ends is visible") {
   auto doc = document_of("v\n\" a\tb \"\n\"\"\nnull\n\"\xC2\xA0x\"\n\"p\r\nq\"\n");
   REQUIRE(doc->add_step({{"op", "to_null"}, {"columns", {"v"}}, {"values", {"null"}}}));
   const Table& t = doc->result();
@@ -135,6 +135,25 @@ TEST_CASE("unit_workbench_view: the cells a step changed, matched by source line
   CHECK_FALSE(derive.cell_changed(0, 0));
 }
 
+TEST_CASE("unit_workbench_view: a removed row is found again by its source line") {
+  // The quoted value spans lines 3 and 4, so the next record starts on line 5.
+  auto doc = document_of("a,b\nx,1\n\"y\ny\",2\nx,1\nz,3\n");
+  REQUIRE(doc->add_step({{"op", "deduplicate"}}));
+  const ChangeRecord& change = doc->change(0);
+  REQUIRE(change.removed.size() == 1);
+  CHECK(change.removed[0].line == 5);
+  const auto row = row_of_line(doc->table_at(0), change.removed[0].line);
+  REQUIRE(row.has_value());
+  CHECK(*row == 2);
+  CHECK(doc->table_at(0).column(0).text(*row) == "x");
+  CHECK_FALSE(row_of_line(doc->table_at(0), 4).has_value());  // inside a record
+  CHECK_FALSE(row_of_line(doc->table_at(1), 5).has_value());  // removed
+
+  Preview dedup = doc->preview({{"op", "deduplicate"}}, 1, RowRange{0, 2});
+  CHECK(dedup.depends_on_other_rows);
+  CHECK_FALSE(doc->preview({{"op", "trim"}, {"columns", "*"}}, 1, RowRange{0, 2}).depends_on_other_rows);
+}
+
 TEST_CASE("unit_workbench_exports: cleaned CSV and TSV, recipe, SQL and run report") {
   auto doc = document_of("name,when\n Ada ,03/04/2021\nBob,\n");
   REQUIRE(doc->add_step({{"op", "trim"}, {"columns", {"name"}}}));
@@ -185,4 +204,48 @@ TEST_CASE("unit_workbench_exports: a recipe that does not fit is not exported") 
   CHECK_FALSE(export_cleaned(*stop).ok());
   REQUIRE(stop->step_problem(0).has_value());
   CHECK(stop->step_problem(0)->step == std::optional<size_t>(0));
+}
+
+TEST_CASE("unit_workbench_view: the sliced sort of 20,000 rows equals std::stable_sort") {
+  // Keys from a fixed linear congruential generator (Knuth's MMIX constants,
+  // from memory): few distinct values, so ties and NULLs are frequent.
+  uint64_t state = 42;
+  auto next = [&] {
+    state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+    return state >> 33;
+  };
+  std::string csv = "k,n\n";
+  const size_t rows = 20000;
+  for (size_t i = 0; i < rows; ++i) {
+    const uint64_t r = next();
+    csv += (r % 7 == 0 ? std::string("null") : std::string(1, static_cast<char>('a' + r % 5)));
+    csv += ",";
+    csv += std::to_string(static_cast<int64_t>(next() % 50) - 25);
+    csv += "\n";
+  }
+  auto doc = document_of(csv);
+  REQUIRE(doc->add_step({{"op", "to_null"}, {"columns", {"k"}}, {"values", {"null"}}}));
+  REQUIRE(doc->add_step({{"op", "parse_number"}, {"column", "n"}}));
+  const Table& t = doc->result();
+
+  std::vector<size_t> expected(rows);
+  for (size_t i = 0; i < rows; ++i) expected[i] = i;
+  std::stable_sort(expected.begin(), expected.end(), [&](size_t a, size_t b) {
+    const bool na = t.column(0).is_null(a), nb = t.column(0).is_null(b);
+    if (na != nb) return nb;
+    if (!na && t.column(0).text(a) != t.column(0).text(b)) return t.column(0).text(a) < t.column(0).text(b);
+    return t.column(1).number(a) > t.column(1).number(b);
+  });
+
+  RowViewJob job(t, {}, {{0, false}, {1, true}}, iso());
+  size_t slices = 1;
+  double last = 0;
+  while (!job.step(1000)) {
+    ++slices;
+    CHECK(job.progress() >= last);
+    last = job.progress();
+  }
+  CHECK(slices > 10);  // runs of 4096 rows, then one merged pair of runs per slice
+  CHECK(job.progress() == 1.0);
+  CHECK(job.take_result() == expected);
 }
