@@ -407,8 +407,21 @@ bool StepForm::draw_field(const FieldSpec& field, FieldValue& value) {
   return changed;
 }
 
+std::optional<std::pair<nlohmann::json, size_t>> StepForm::take_full_count_request() {
+  if (!full_count_requested_) return std::nullopt;
+  full_count_requested_ = false;
+  counting_ = true;
+  return std::make_pair(definition(), edited_step_.value_or(position_));
+}
+
+void StepForm::set_full_preview(workbench::Preview preview) {
+  counting_ = false;
+  if (visible_ && preview.definition == definition()) preview_ = std::move(preview);
+}
+
 void StepForm::refresh_preview(workbench::Document& document) {
   preview_stale_ = false;
+  counting_ = false;
   const nlohmann::json candidate = definition();
   if (edited_step_) {
     // An edit is previewed as the new definition in place of the old step.
@@ -436,6 +449,16 @@ void StepForm::draw_preview() {
                                        : "in the first " + plural(preview.rows.end - preview.rows.begin, "row", "rows");
   ImGui::Text("%s changed, %s removed, %s rejected %s.", plural(cells, "cell", "cells").c_str(),
               plural(change.rows_removed, "row", "rows").c_str(), count_text(change.rows_rejected).c_str(), scope.c_str());
+  if (!preview.complete) {
+    if (preview.depends_on_other_rows)
+      warning_text("This step compares rows with each other: over the whole table its result can differ, not only its counts.");
+    if (counting_) {
+      ImGui::TextDisabled("Counting over every row...");
+    } else if (ImGui::SmallButton("Count over every row")) {
+      full_count_requested_ = true;
+    }
+    if (ImGui::IsItemHovered()) ImGui::SetTooltip("Preview the step on the whole table (runs in the background).");
+  }
   for (const std::string& conflict : change.conflicts) warning_text(conflict);
   for (const std::string& warning : change.warnings) warning_text(warning);
   if (!change.samples().empty() &&

@@ -71,6 +71,12 @@ class StepForm {
   // The step's JSON from the fields as they are.
   nlohmann::json definition() const;
 
+  // "Count over every row": the definition and position to preview over the
+  // whole table (the workbench runs it in slices), once per click.
+  std::optional<std::pair<nlohmann::json, size_t>> take_full_count_request();
+  // The complete preview, shown if the fields have not changed since.
+  void set_full_preview(workbench::Preview preview);
+
  private:
   struct FieldValue {
     std::string text;
@@ -93,6 +99,8 @@ class StepForm {
   std::string note_;
   bool preview_stale_ = true;
   std::optional<workbench::Preview> preview_;
+  bool full_count_requested_ = false;
+  bool counting_ = false;
 };
 
 // Where "at character N" points in an engine message, when it says so.

@@ -561,6 +561,11 @@ void Workbench::frame() {
     if (!s.jobs.empty() || !s.message.empty()) s.draw_status_bar();
   }
   if (s.document) {
+    if (auto request = s.form.take_full_count_request()) {
+      s.queue(s.document->make_preview_job(request->first, request->second), [&s](wb::Job& done) {
+        s.form.set_full_preview(static_cast<wb::Document::PreviewJob&>(done).take_result());
+      });
+    }
     if (std::optional<StepForm::Submit> submit = s.form.draw(*s.document)) {
       if (submit->edited_step) {
         s.after_edit(s.document->edit_step(*submit->edited_step, submit->definition), *submit->edited_step + 1);
