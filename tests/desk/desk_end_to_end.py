@@ -2,7 +2,8 @@
 """End-to-end test of tamis-desk under Xvfb with Mesa's software OpenGL.
 
 Replays a script of UI actions (tamis-desk --script) that opens the demo
-file, adds the fixes of three findings, merges one group of similar values,
+file (trying a wrong delimiter on the open screen first), adds the fixes of
+three findings, merges one group of similar values with one member unticked,
 and exports the recipe and the cleaned CSV. Then checks:
   * the exported CSV equals, byte for byte, what `tamis run` writes for the
     exported recipe on the same file (the workbench and the batch runner are
@@ -94,11 +95,17 @@ def main():
             f.write("\n".join([
                 "# the demo, three findings' fixes, one similar-values group",
                 "open " + demo,
+                # The open screen's delimiter control: a wrong choice shows one column.
+                "read-option delimiter ;",
+                "expect-columns 1",
+                "read-option delimiter ,",
+                "expect-columns 10",
                 "load",
                 "apply-finding 1",
                 "apply-finding 1",
                 "apply-finding 1",
                 "similar species token_key",
+                "untick 1 2",
                 "merge-group 1",
                 "expect-steps 4",
                 "export-recipe " + recipe,

@@ -29,6 +29,8 @@ class OpenScreen {
 
   // Test mode: the same changes as the controls make.
   Status set_option(std::string_view key, std::string_view value);
+  // Columns of the preview as read with the current options.
+  size_t preview_columns() const { return columns_.size(); }
 
  private:
   void refresh_preview();

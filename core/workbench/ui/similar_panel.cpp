@@ -13,6 +13,25 @@ namespace tamis::ui {
 
 namespace wb = workbench;
 
+const wb::SimilarResult* Workbench::State::sync_similar_choices() {
+  const wb::SimilarResult* result = document ? document->similar() : nullptr;
+  if (!result) {
+    similar.result = nullptr;
+    return nullptr;
+  }
+  if (result != similar.result || similar.merge.size() != result->groups.size()) {
+    similar.result = result;
+    similar.merge.assign(result->groups.size(), true);
+    similar.canonical.clear();
+    similar.keep_member.clear();
+    for (const SimilarGroup& group : result->groups) {
+      similar.canonical.push_back(group.canonical);
+      similar.keep_member.emplace_back(group.members.size(), true);
+    }
+  }
+  return result;
+}
+
 void Workbench::State::draw_similar_panel() {
   const Table* table = shown_table();
   if (!table || table->column_count() == 0) return;
@@ -63,20 +82,10 @@ void Workbench::State::draw_similar_panel() {
   }
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("Group the values of this column at this step (runs in the background).");
 
-  const wb::SimilarResult* result = document->similar();
+  const wb::SimilarResult* result = sync_similar_choices();
   if (!result) {
     ImGui::TextDisabled("No groups yet: choose a column and press Find groups.");
     return;
-  }
-  if (result != similar.result || similar.merge.size() != result->groups.size()) {
-    similar.result = result;
-    similar.merge.assign(result->groups.size(), true);
-    similar.canonical.clear();
-    similar.keep_member.clear();
-    for (const SimilarGroup& group : result->groups) {
-      similar.canonical.push_back(group.canonical);
-      similar.keep_member.emplace_back(group.members.size(), true);
-    }
   }
   ImGui::Separator();
   ImGui::TextDisabled("%s in %s (%s, %s distinct values)", plural(result->groups.size(), "group", "groups").c_str(),

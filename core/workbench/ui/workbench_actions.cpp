@@ -72,6 +72,16 @@ Status Workbench::run_action(std::string_view line) {
     else return usage_error("key: ctrl+o, ctrl+s, ctrl+f, ctrl+z or ctrl+shift+z");
     return Ok{};
   }
+  if (verb == "expect-columns") {
+    Result<size_t> n = index_arg(0);
+    if (!n) return n.take_error();
+    const Table* table = s.shown_table();
+    const size_t columns = s.open_screen.active() ? s.open_screen.preview_columns() : table ? table->column_count() : 0;
+    if (columns != n.value())
+      return usage_error("expected " + std::to_string(n.value()) + " columns, " + (s.open_screen.active() ? "the preview" : "the table") +
+                         " has " + std::to_string(columns));
+    return Ok{};
+  }
   if (verb == "theme") {
     if (rest != "light" && rest != "dark") return usage_error("theme is light or dark");
     s.theme = rest == "dark" ? Theme::dark : Theme::light;
@@ -115,20 +125,25 @@ Status Workbench::run_action(std::string_view line) {
     Result<size_t> n = index_arg(0);
     if (!n) return n.take_error();
     if (n.value() == 0) return usage_error("groups are numbered from 1");
-    // The panel fills its choices when it draws the result; do the same here.
-    const wb::SimilarResult* result = s.document->similar();
-    if (!result) return usage_error("merge-group: no groups were found");
-    if (result != s.similar.result) {
-      s.similar.result = result;
-      s.similar.merge.assign(result->groups.size(), false);
-      s.similar.canonical.clear();
-      s.similar.keep_member.clear();
-      for (const SimilarGroup& group : result->groups) {
-        s.similar.canonical.push_back(group.canonical);
-        s.similar.keep_member.emplace_back(group.members.size(), true);
-      }
-    }
+    if (!s.sync_similar_choices()) return usage_error("merge-group: no groups were found");
     return s.merge_similar_groups({n.value() - 1});
+  }
+  if (verb == "untick" || verb == "canonical") {
+    // Similar values: a member's tick box, or its preferred-spelling button.
+    Result<size_t> group = index_arg(0);
+    Result<size_t> member = index_arg(1);
+    if (!group || !member || group.value() == 0 || member.value() == 0) return usage_error(verb + " GROUP MEMBER (numbered from 1)");
+    const wb::SimilarResult* result = s.sync_similar_choices();
+    if (!result) return usage_error(verb + ": no groups were found");
+    const size_t g = group.value() - 1, m = member.value() - 1;
+    if (g >= result->groups.size() || m >= result->groups[g].members.size()) return usage_error(verb + ": no such member");
+    if (verb == "untick") {
+      s.similar.keep_member[g][m] = false;
+    } else {
+      s.similar.canonical[g] = result->groups[g].members[m].value;
+      s.similar.keep_member[g][m] = true;
+    }
+    return Ok{};
   }
   if (verb == "add-step") {
     nlohmann::json definition = nlohmann::json::parse(rest, nullptr, false);

@@ -135,6 +135,9 @@ struct Workbench::State {
   Status add_step(const nlohmann::json& definition, std::optional<size_t> position);
   Status add_finding_fix(size_t finding, size_t fix);
   Status merge_similar_groups(const std::vector<size_t>& groups);
+  // Fresh choices (every group ticked, its own canonical, every member kept)
+  // when the document has a new similar-values result; the current one otherwise.
+  const workbench::SimilarResult* sync_similar_choices();
   void select_stage(size_t stage);
   void undo();
   void redo();
