@@ -21,6 +21,25 @@ namespace {
 constexpr size_t kHistogramBins = 24;
 constexpr size_t kLongestLengthShown = 40;
 
+// Days since 1970-01-01 as YYYY-MM-DD (proleptic Gregorian), for the date
+// histogram's labels. The algorithm is H. Hinnant's civil_from_days
+// ("chrono-Compatible Low-Level Date Algorithms"), from memory.
+std::string date_text(int64_t days) {
+  days += 719468;
+  const int64_t era = (days >= 0 ? days : days - 146096) / 146097;
+  const int64_t day_of_era = days - era * 146097;
+  const int64_t year_of_era = (day_of_era - day_of_era / 1460 + day_of_era / 36524 - day_of_era / 146096) / 365;
+  const int64_t day_of_year = day_of_era - (365 * year_of_era + year_of_era / 4 - year_of_era / 100);
+  const int64_t mp = (5 * day_of_year + 2) / 153;
+  const int64_t day = day_of_year - (153 * mp + 2) / 5 + 1;
+  const int64_t month = mp < 10 ? mp + 3 : mp - 9;
+  const int64_t year = year_of_era + era * 400 + (month <= 2 ? 1 : 0);
+  char text[72];
+  std::snprintf(text, sizeof text, "%04lld-%02lld-%02lld", static_cast<long long>(year), static_cast<long long>(month),
+                static_cast<long long>(day));
+  return text;
+}
+
 size_t code_points(std::string_view text) {
   size_t count = 0;
   for (unsigned char byte : text)
@@ -178,17 +197,21 @@ void Workbench::State::draw_column_panel() {
   const float plot_height = ImGui::GetTextLineHeight() * 3.5f;
   if (!column_shape.histogram.empty()) {
     ImGui::Spacing();
-    ImGui::Text("Values from %.6g to %.6g", column_shape.histogram_min, column_shape.histogram_max);
+    const bool dates = stored.type() == Type::date;
     const double low = column_shape.histogram_min;
     const double bin_width = (column_shape.histogram_max - low) / static_cast<double>(kHistogramBins);
-    draw_bars("histogram", column_shape.histogram, plot_height, [&](size_t bin) {
-      char text[64];
-      std::snprintf(text, sizeof text, "%.6g to %.6g", low + bin_width * static_cast<double>(bin),
-                    low + bin_width * static_cast<double>(bin + 1));
+    auto shown = [&](double value) {
+      if (dates) return date_text(static_cast<int64_t>(std::floor(value)));
+      char text[32];
+      std::snprintf(text, sizeof text, "%.6g", value);
       return std::string(text);
+    };
+    ImGui::Text("%s from %s to %s", dates ? "Dates" : "Values", shown(low).c_str(), shown(column_shape.histogram_max).c_str());
+    draw_bars("histogram", column_shape.histogram, plot_height, [&](size_t bin) {
+      return shown(low + bin_width * static_cast<double>(bin)) + " to " + shown(low + bin_width * static_cast<double>(bin + 1));
     });
   }
-  if (!column_shape.lengths.empty()) {
+  if (stored.type() == Type::text && !column_shape.lengths.empty()) {
     ImGui::Text("Lengths 0 to %zu%s characters", column_shape.longest_shown,
                 column_shape.longest_shown > kLongestLengthShown ? "+" : "");
     draw_bars("lengths", column_shape.lengths, plot_height, [&](size_t length) {

@@ -128,15 +128,20 @@ void apply_theme(Theme theme, float scale) {
 void load_ui_font(float base_pixels, float scale, float framebuffer_ratio) {
   static const ImWchar ranges[] = {
       0x0020, 0x024F,  // Basic Latin, Latin-1, Latin Extended-A and -B
+      0x0250, 0x02FF,  // IPA extensions, spacing modifier letters
+      0x0300, 0x036F,  // combining diacritical marks (decomposed accents)
       0x0370, 0x03FF,  // Greek
       0x0400, 0x052F,  // Cyrillic and its supplement
       0x1E00, 0x1EFF,  // Latin Extended Additional
       0x2000, 0x206F,  // General Punctuation
+      0x20A0, 0x20CF,  // Currency Symbols
+      0x2100, 0x218F,  // Letterlike Symbols, Number Forms
       0x2190, 0x21FF,  // Arrows
       0x2200, 0x22FF,  // Mathematical Operators (the empty-set sign)
       0x2400, 0x243F,  // Control Pictures (the visible space sign)
       0x25A0, 0x25FF,  // Geometric Shapes
       0x2700, 0x27BF,  // Dingbats (check and cross marks)
+      0xFFFD, 0xFFFD,  // the replacement character
       0,
   };
   ImGuiIO& io = ImGui::GetIO();
