@@ -108,6 +108,11 @@ def main():
                 "untick 1 2",
                 "merge-group 1",
                 "expect-steps 4",
+                # Undo and redo through the keyboard shortcuts' path.
+                "key ctrl+z",
+                "expect-steps 3",
+                "key ctrl+shift+z",
+                "expect-steps 4",
                 "export-recipe " + recipe,
                 "export-csv " + cleaned,
                 "panel Findings",

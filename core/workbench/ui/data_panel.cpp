@@ -3,6 +3,9 @@
 #include <imgui.h>
 #include <imgui_stdlib.h>
 
+#include <chrono>
+#include <cstdio>
+
 #include "text_format.hpp"
 #include "workbench_state.hpp"
 
@@ -79,7 +82,13 @@ void Workbench::State::refresh_view() {
     if (view_is_all) {
       view.clear();
     } else if (date_format) {
+      // One call, not slices: the status line says how long a big table took.
+      const auto started = std::chrono::steady_clock::now();
       view = wb::make_row_view(*table, row_filters, keys, *date_format);
+      const double ms = std::chrono::duration<double, std::milli>(std::chrono::steady_clock::now() - started).count();
+      char took[32];
+      std::snprintf(took, sizeof took, "%.0f ms", ms);
+      say("View: " + count_text(view.size()) + " of " + plural(table->row_count(), "row", "rows") + " (" + took + ")");
     }
     view_serial = serial;
     view_dirty = false;
