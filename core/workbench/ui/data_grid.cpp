@@ -133,7 +133,7 @@ DataGrid::Events DataGrid::draw(const GridSource& source, std::optional<size_t> 
   const ImGuiTableFlags flags = ImGuiTableFlags_ScrollX | ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg |
                                 ImGuiTableFlags_BordersInnerV | ImGuiTableFlags_BordersOuter |
                                 ImGuiTableFlags_Resizable | ImGuiTableFlags_Sortable |
-                                ImGuiTableFlags_SortTristate | ImGuiTableFlags_Hideable;
+                                ImGuiTableFlags_SortTristate;
   if (!ImGui::BeginTable("##data-grid", static_cast<int>(shown_columns + 1), flags)) return events;
   ImGui::TableSetupScrollFreeze(1, 1);
   ImGui::TableSetupColumn("line", ImGuiTableColumnFlags_WidthFixed | ImGuiTableColumnFlags_NoHide |

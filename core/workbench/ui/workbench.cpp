@@ -23,6 +23,10 @@ using Clock = std::chrono::steady_clock;
 // while a job runs (common practice: leave a few ms of a 16.7 ms frame for drawing).
 constexpr double kWorkMillisecondsPerFrame = 12.0;
 
+void tip(const char* text) {
+  if (ImGui::IsItemHovered()) ImGui::SetTooltip("%s", text);
+}
+
 std::string file_name_of(const std::string& path) {
   const size_t slash = path.find_last_of("/\\");
   return slash == std::string::npos ? path : path.substr(slash + 1);
@@ -368,11 +372,13 @@ void Workbench::State::draw_menu() {
   if (!ImGui::BeginMenuBar()) return;
   if (ImGui::BeginMenu("File")) {
     if (ImGui::MenuItem("Open file...", "Ctrl+O")) show_open_browser();
+    tip("Choose a CSV or TSV file to clean. The file itself is never changed.");
     if (ImGui::MenuItem("Open recipe...", nullptr, false, document != nullptr)) {
       browsing_for_recipe = true;
       pending_export.reset();
       browser.show(FileBrowser::Purpose::open, "Open a recipe (JSON) and replay it on this file");
     }
+    tip("Replace the recipe with one saved earlier and replay it on this file; steps that no longer fit are marked.");
     if (ImGui::MenuItem("Save recipe", "Ctrl+S", false, document != nullptr)) {
       if (recipe_path.empty()) {
         ask_export_path(ExportKind::recipe, Dialect::postgres);
@@ -380,23 +386,30 @@ void Workbench::State::draw_menu() {
         say(saved.error().to_string(), true);
       }
     }
+    tip("Save the recipe as JSON, to replay later with tamis run.");
     ImGui::Separator();
     if (ImGui::BeginMenu("Export", document != nullptr)) {
       if (ImGui::MenuItem("Cleaned file (CSV)...")) ask_export_path(ExportKind::cleaned_csv, Dialect::postgres);
+      tip("The table after every enabled step, exactly as tamis run writes it.");
       if (ImGui::MenuItem("Cleaned file (TSV)...")) ask_export_path(ExportKind::cleaned_tsv, Dialect::postgres);
+      tip("The same, separated by tabs.");
       if (ImGui::MenuItem("Recipe (JSON)...")) ask_export_path(ExportKind::recipe, Dialect::postgres);
+      tip("The steps as a recipe file for tamis run, tamis sql and later sessions.");
       if (ImGui::BeginMenu("SQL script")) {
         for (Dialect dialect : {Dialect::postgres, Dialect::mysql, Dialect::sqlite, Dialect::duckdb, Dialect::spark}) {
           const std::string label = std::string(dialect_name(dialect)) + "...";
           if (ImGui::MenuItem(label.c_str())) ask_export_path(ExportKind::sql, dialect);
+          tip("The recipe as one commented SQL script for this database; it never changes the raw table.");
         }
         ImGui::EndMenu();
       }
       if (ImGui::MenuItem("Run report (JSON)...")) ask_export_path(ExportKind::report, Dialect::postgres);
+      tip("What every step changed, with row counts that balance, as tamis run reports it.");
       ImGui::EndMenu();
     }
     ImGui::Separator();
     if (ImGui::MenuItem("Quit")) quit = true;
+    tip("Close tamis. Unsaved recipe changes are lost.");
     ImGui::EndMenu();
   }
   if (ImGui::BeginMenu("Edit")) {
@@ -406,6 +419,7 @@ void Workbench::State::draw_menu() {
     if (ImGui::MenuItem(redo_text.c_str(), "Ctrl+Shift+Z", false, document && document->can_redo())) redo();
     ImGui::Separator();
     if (ImGui::MenuItem("Filter rows", "Ctrl+F", false, document != nullptr)) focus_filter = true;
+    tip("Show only some rows in the Data panel. The recipe is not changed.");
     ImGui::EndMenu();
   }
   if (ImGui::BeginMenu("Step", document != nullptr && document->stage_ready(document->selected_stage()))) {
@@ -425,10 +439,12 @@ void Workbench::State::draw_menu() {
       theme = Theme::light;
       apply_theme(theme, scale);
     }
+    tip("Dark text on a warm light background.");
     if (ImGui::MenuItem("Dark theme", nullptr, theme == Theme::dark)) {
       theme = Theme::dark;
       apply_theme(theme, scale);
     }
+    tip("Light text on a slate background.");
     ImGui::EndMenu();
   }
   ImGui::EndMenuBar();
