@@ -115,6 +115,8 @@ def main():
                 "expect-steps 4",
                 "export-recipe " + recipe,
                 "export-csv " + cleaned,
+                # The screenshot: the table after step 3, its changed cells highlighted.
+                "select-step 3",
                 "panel Findings",
             ]) + "\n")
         env = dict(os.environ, LIBGL_ALWAYS_SOFTWARE="1")

@@ -93,12 +93,16 @@ void Workbench::State::refresh_view() {
     view_serial = serial;
     view_dirty = false;
   }
-  // The cells the selected step changed: stage k against stage k - 1.
+  // The cells the selected step changed: stage k against stage k - 1 (once
+  // that is at hand again, when the model had dropped it).
   if (diff_serial != serial) {
     diff.reset();
-    if (stage > 0 && document->stage_ready(stage - 1))
+    if (stage == 0) {
+      diff_serial = serial;
+    } else if (document->stage_ready(stage - 1)) {
       diff = std::make_unique<wb::StepDiff>(document->table_at(stage - 1), *table);
-    diff_serial = serial;
+      diff_serial = serial;
+    }
   }
 }
 

@@ -86,7 +86,7 @@ void Workbench::State::draw_findings_panel() {
         if (const StepSpec* spec = find_step_spec(op); spec && ImGui::Button("Edit first...")) {
           const size_t at = document->selected_stage();
           const nlohmann::json definition = nlohmann::json::parse(fix.step.dump());
-          form.open_new(*spec, at, schema_of(document->table_at(at)), &definition);
+          form.open_new(*spec, at, document->schema_at(at), &definition);
         }
         if (ImGui::IsItemHovered()) ImGui::SetTooltip("Open the fix in the step form to change it before adding.");
         ImGui::PopID();

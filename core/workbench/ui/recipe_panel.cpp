@@ -75,7 +75,7 @@ void Workbench::State::draw_recipe_panel() {
       ImGui::PushTextWrapPos(0.0f);
       ImGui::TextColored(ImColor(palette().error_text), "%s", problem->message.c_str());
       ImGui::PopTextWrapPos();
-    } else if (step.enabled && document->stage_ready(i + 1)) {
+    } else if (step.enabled && document->step_computed(i)) {
       ImGui::TextDisabled("   %s", change_summary(document->change(i)).c_str());
     }
     ImGui::Indent();
@@ -111,9 +111,9 @@ void Workbench::State::draw_recipe_panel() {
   if (toggle) after_edit(document->set_enabled(toggle->first, toggle->second), std::nullopt);
   if (move_from) after_edit(document->move_step(*move_from, *move_to), *move_to + 1);
   if (remove) after_edit(document->delete_step(*remove), std::min(*remove, document->step_count()));
-  if (edit && document->stage_ready(*edit)) {
+  if (edit) {
     const nlohmann::json definition = document->recipe().steps[*edit].definition;
-    form.open_edit(*edit, definition, schema_of(document->table_at(*edit)));
+    form.open_edit(*edit, definition, document->schema_at(*edit));
   }
 }
 
@@ -140,8 +140,8 @@ void Workbench::State::draw_changes_panel() {
   }
   const size_t step = stage - 1;
   ImGui::TextDisabled("by step %zu", stage);
-  if (!document->stage_ready(stage)) {
-    ImGui::TextDisabled("Working...");
+  if (!document->step_computed(step)) {
+    draw_waiting("Working...");
     return;
   }
   const ChangeRecord& change = document->change(step);

@@ -113,7 +113,8 @@ bool Workbench::State::has_pending_work() const {
   const size_t stage = document->selected_stage();
   if (!document->stage_ready(stage)) return true;
   const uint64_t serial = document->stage_serial(stage);
-  return (!document->profile() && profile_asked_for != serial) || (!document->findings() && findings_asked_for != serial);
+  return (!document->profile() && profile_asked_for != serial) || (!document->findings() && findings_asked_for != serial) ||
+         (stage > 0 && !document->stage_ready(stage - 1));
 }
 
 void Workbench::State::ask_for_missing_work() {
@@ -132,7 +133,11 @@ void Workbench::State::ask_for_missing_work() {
   if (!document->findings() && findings_asked_for != serial) {
     findings_asked_for = serial;
     queue(document->make_findings_job(), nullptr);
+    return;
   }
+  // The stage before the selected one, for the Data panel's changed cells
+  // (the model drops stages nobody looks at).
+  if (stage > 0 && !document->stage_ready(stage - 1)) queue(document->make_apply_job(stage - 1), nullptr);
 }
 
 // ---------------------------------------------------------------------------
@@ -259,7 +264,10 @@ Status Workbench::State::merge_similar_groups(const std::vector<size_t>& groups)
 void Workbench::State::undo() {
   if (!document || !document->can_undo()) return;
   const std::string label = document->undo_label();
+  // Looking at the result stays looking at the result.
+  const bool at_result = document->selected_stage() == document->step_count();
   document->undo();
+  if (at_result) document->select_stage(document->step_count());
   view_dirty = true;
   work_stopped = false;
   say("Undid " + label);
@@ -268,7 +276,9 @@ void Workbench::State::undo() {
 void Workbench::State::redo() {
   if (!document || !document->can_redo()) return;
   const std::string label = document->redo_label();
+  const bool at_result = document->selected_stage() == document->step_count();
   document->redo();
+  if (at_result) document->select_stage(document->step_count());
   view_dirty = true;
   work_stopped = false;
   say("Redid " + label);
@@ -428,7 +438,7 @@ void Workbench::State::draw_menu() {
       const std::string label = std::string(spec.title) + "##" + std::string(spec.op);
       if (ImGui::MenuItem(label.c_str())) {
         const size_t at = document->selected_stage();
-        form.open_new(spec, at, schema_of(document->table_at(at)));
+        form.open_new(spec, at, document->schema_at(at));
       }
       if (ImGui::IsItemHovered()) ImGui::SetTooltip("%.*s", static_cast<int>(spec.op.size()), spec.op.data());
     }

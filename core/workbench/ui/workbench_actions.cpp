@@ -153,7 +153,7 @@ Status Workbench::run_action(std::string_view line) {
     // Through the form's fields, as a person would fill them, then added.
     const size_t at = s.document->selected_stage();
     StepForm filled;
-    filled.open_new(*spec, at, schema_of(s.document->table_at(at)), &definition);
+    filled.open_new(*spec, at, s.document->schema_at(at), &definition);
     return s.add_step(filled.definition(), at);
   }
   if (verb == "open-form") {
@@ -162,7 +162,7 @@ Status Workbench::run_action(std::string_view line) {
     const StepSpec* spec = find_step_spec(definition.value("op", std::string()));
     if (!spec) return usage_error("open-form: unknown op");
     const size_t at = s.document->selected_stage();
-    s.form.open_new(*spec, at, schema_of(s.document->table_at(at)), &definition);
+    s.form.open_new(*spec, at, s.document->schema_at(at), &definition);
     return Ok{};
   }
   if (verb == "select-step") {
