@@ -217,10 +217,15 @@ int main(int argc, char** argv) {
   bool was_busy = false;
   bool table_seen = false;
   bool running = true;
+  // ImGui settles over a few frames after input (a click opens a popup on
+  // the next frame), so a few frames are drawn after each event before the
+  // loop sleeps again.
+  int frames_before_sleep = 3;
   while (running) {
     const Clock::time_point frame_start = Clock::now();
     SDL_Event event;
     while (SDL_PollEvent(&event)) {
+      frames_before_sleep = 3;
       ImGui_ImplSDL2_ProcessEvent(&event);
       if (event.type == SDL_QUIT) running = false;
       if (event.type == SDL_WINDOWEVENT && event.window.event == SDL_WINDOWEVENT_CLOSE &&
@@ -299,9 +304,10 @@ int main(int argc, char** argv) {
       measured_ms.clear();
       measured_ui_ms.clear();
     }
-    if (!options.script && !workbench.busy()) {
+    if (!options.script && !workbench.busy() && --frames_before_sleep <= 0) {
       // Nothing running: sleep until the next event instead of spinning.
       SDL_WaitEventTimeout(nullptr, 250);
+      frames_before_sleep = 1;
     }
   }
 
