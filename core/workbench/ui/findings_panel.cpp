@@ -28,13 +28,14 @@ void Workbench::State::draw_findings_panel() {
     ImGui::PushID(static_cast<int>(i));
     std::string heading = std::to_string(i + 1) + ". " + finding.title + "###finding";
     const bool open = ImGui::CollapsingHeader(heading.c_str(), i < 3 ? ImGuiTreeNodeFlags_DefaultOpen : 0);
-    if (ImGui::IsItemHovered() && !finding.columns.empty()) {
+    if (ImGui::IsItemHovered()) {
       std::string columns;
       for (const std::string& column : finding.columns) {
         if (!columns.empty()) columns += ", ";
         columns += column;
       }
-      ImGui::SetTooltip("%s rows affected in %s", count_text(finding.rows_affected).c_str(), columns.c_str());
+      ImGui::SetTooltip("%s\n%s rows affected%s%s", finding.title.c_str(), count_text(finding.rows_affected).c_str(),
+                        columns.empty() ? "" : " in ", columns.c_str());
     }
     if (open) {
       ImGui::PushTextWrapPos(0.0f);
