@@ -676,7 +676,8 @@ EditOutcome Document::edit_step(size_t step, const nlohmann::json& definition) {
   if (!recipe) return EditOutcome{false, {problem_of(recipe.error(), step)}};
   Recipe next = recipe_;
   next.steps[step] = std::move(recipe->steps[0]);
-  return State::commit(*this, std::move(next), "edit " + next.steps[step].op);
+  std::string label = "edit " + next.steps[step].op;
+  return State::commit(*this, std::move(next), std::move(label));
 }
 
 EditOutcome Document::set_enabled(size_t step, bool enabled) {
@@ -686,7 +687,8 @@ EditOutcome Document::set_enabled(size_t step, bool enabled) {
   s.enabled = enabled;
   if (enabled) s.definition.erase("enabled");
   else s.definition["enabled"] = false;
-  return State::commit(*this, std::move(next), (enabled ? "enable " : "disable ") + s.op);
+  std::string label = (enabled ? "enable " : "disable ") + s.op;
+  return State::commit(*this, std::move(next), std::move(label));
 }
 
 EditOutcome Document::set_note(size_t step, std::string note) {
@@ -696,7 +698,8 @@ EditOutcome Document::set_note(size_t step, std::string note) {
   s.note = std::move(note);
   if (s.note.empty()) s.definition.erase("note");
   else s.definition["note"] = s.note;
-  return State::commit(*this, std::move(next), "note on " + s.op);
+  std::string label = "note on " + s.op;
+  return State::commit(*this, std::move(next), std::move(label));
 }
 
 EditOutcome Document::move_step(size_t from, size_t to) {

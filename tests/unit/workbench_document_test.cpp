@@ -108,25 +108,27 @@ TEST_CASE("unit_workbench: undo restores the table after edit, disable, move, de
   const Table start = doc->result();
   const std::string recipe_start = recipe_text(*doc);
 
-  auto check_undo = [&](const char* what, EditOutcome outcome) {
-    CAPTURE(what);
+  auto check_undo = [&](const std::string& label, EditOutcome outcome) {
+    CAPTURE(label);
     REQUIRE(outcome.applied);
+    CHECK(doc->undo_label() == label);
     const Table edited = doc->result();
     const std::string recipe_edited = recipe_text(*doc);
     CHECK(recipe_edited != recipe_start);
     REQUIRE(doc->undo());
     CHECK(exact_difference(start, doc->result()) == "");
     CHECK(recipe_text(*doc) == recipe_start);
+    CHECK(doc->redo_label() == label);
     REQUIRE(doc->redo());
     CHECK(exact_difference(edited, doc->result()) == "");
     CHECK(recipe_text(*doc) == recipe_edited);
     REQUIRE(doc->undo());
   };
-  check_undo("edit", doc->edit_step(1, {{"op", "trim"}, {"columns", {"name", "city"}}, {"side", "leading"}}));
-  check_undo("disable", doc->set_enabled(2, false));
-  check_undo("move", doc->move_step(2, 0));
-  check_undo("delete", doc->delete_step(1));
-  check_undo("note", doc->set_note(1, "clerks typed spaces"));
+  check_undo("edit trim", doc->edit_step(1, {{"op", "trim"}, {"columns", {"name", "city"}}, {"side", "leading"}}));
+  check_undo("disable map_values", doc->set_enabled(2, false));
+  check_undo("move map_values", doc->move_step(2, 0));
+  check_undo("delete trim", doc->delete_step(1));
+  check_undo("note on trim", doc->set_note(1, "clerks typed spaces"));
   check_undo("open recipe", doc->open_recipe(R"({"tamis_recipe": 1, "steps": [{"op": "deduplicate"}]})", "r.json"));
   CHECK(doc->can_redo());
 }

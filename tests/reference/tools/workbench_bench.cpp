@@ -111,6 +111,17 @@ int main(int argc, char** argv) {
   figure("profile", total, "ms");
   figure("profile, longest slice", longest, "ms");
 
+  auto findings = doc.make_findings_job();
+  longest = run_sliced(*findings, total);
+  figure("findings (profile reused)", total, "ms");
+  figure("findings, longest slice", longest, "ms");
+  figure("findings found", static_cast<double>(doc.findings() ? doc.findings()->size() : 0), "");
+
+  auto similar = doc.make_similar_job(1);
+  longest = run_sliced(*similar, total);
+  figure("similar values of " + doc.table_at(0).name(1) + " (token_key)", total, "ms");
+  figure("similar values, longest slice", longest, "ms");
+
   const nlohmann::json trim = {{"op", "trim"}, {"columns", "*"}};
   auto start = Clock::now();
   Preview window = doc.preview(trim, 0, RowRange{0, 100});
@@ -162,11 +173,12 @@ int main(int argc, char** argv) {
   run_sliced(*apply, total);
   figure("map_values add + apply (sliced)", ms_since(start), "ms");
 
-  start = Clock::now();
-  const std::vector<SortKey> keys{{column, false}};
   const DateFormat iso = DateFormat::compile("%Y-%m-%d").value();
-  const auto view = make_row_view(doc.result(), {}, keys, iso);
-  figure("sort view by one text column", ms_since(start), "ms");
+  RowViewJob sort(doc.result(), {}, {{column, false}}, iso);
+  longest = run_sliced(sort, total);
+  figure("sort view by one text column (sliced)", total, "ms");
+  figure("sort view, longest slice", longest, "ms");
+  const auto view = sort.take_result();
   start = Clock::now();
   StepDiff diff(doc.table_at(1), doc.table_at(2));
   figure("step diff setup", ms_since(start), "ms");
