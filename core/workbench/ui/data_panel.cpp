@@ -15,6 +15,10 @@ namespace wb = workbench;
 
 namespace {
 
+// Above this many rows a filtered or sorted view is made in slices in the
+// background (a sort of a million rows takes more than half a second).
+constexpr size_t kSlicedViewRows = 200000;
+
 class TableGridSource final : public GridSource {
  public:
   TableGridSource(const Table& table, const std::vector<size_t>* view, const wb::StepDiff* diff,
@@ -79,16 +83,30 @@ void Workbench::State::refresh_view() {
     if (sort) keys.push_back({*table->find(sort->column), sort->descending});
     if (selected_column && *selected_column >= table->column_count()) selected_column.reset();
     view_is_all = filters.empty() && !sort;
+    view_computing = false;
+    ++view_request;
     if (view_is_all) {
       view.clear();
-    } else if (date_format) {
-      // One call, not slices: the status line says how long a big table took.
+    } else if (date_format && table->row_count() > kSlicedViewRows) {
+      // Every row in file order until the job delivers the view.
+      view_is_all = true;
+      view.clear();
+      view_computing = true;
+      const uint64_t request = view_request;
       const auto started = std::chrono::steady_clock::now();
+      queue(std::make_unique<wb::RowViewJob>(*table, std::move(row_filters), std::move(keys), *date_format),
+            [this, request, serial, started](wb::Job& done) {
+              if (request != view_request || serial != view_serial) return;
+              view = static_cast<wb::RowViewJob&>(done).take_result();
+              view_is_all = false;
+              view_computing = false;
+              const double ms = std::chrono::duration<double, std::milli>(std::chrono::steady_clock::now() - started).count();
+              char took[32];
+              std::snprintf(took, sizeof took, "%.0f ms", ms);
+              say("View: " + count_text(view.size()) + " rows (made in the background in " + took + ")");
+            });
+    } else if (date_format) {
       view = wb::make_row_view(*table, row_filters, keys, *date_format);
-      const double ms = std::chrono::duration<double, std::milli>(std::chrono::steady_clock::now() - started).count();
-      char took[32];
-      std::snprintf(took, sizeof took, "%.0f ms", ms);
-      say("View: " + count_text(view.size()) + " of " + plural(table->row_count(), "row", "rows") + " (" + took + ")");
     }
     view_serial = serial;
     view_dirty = false;
@@ -186,6 +204,9 @@ void Workbench::State::draw_data_panel() {
   if (!view_is_all) {
     ImGui::SameLine();
     ImGui::TextDisabled("| showing %s of %s", count_text(view.size()).c_str(), count_text(table->row_count()).c_str());
+  } else if (view_computing && !work_stopped) {
+    ImGui::SameLine();
+    ImGui::TextDisabled("| filtering and sorting in the background...");
   }
   if (diff) {
     ImGui::SameLine();

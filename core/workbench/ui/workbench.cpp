@@ -102,6 +102,7 @@ void Workbench::State::draw_waiting(const char* working_text) {
   if (ImGui::SmallButton("Continue")) {
     work_stopped = false;
     profile_asked_for = findings_asked_for = 0;
+    view_dirty = true;
   }
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("Start the stopped work again.");
 }

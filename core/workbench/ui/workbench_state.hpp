@@ -98,6 +98,8 @@ struct Workbench::State {
   bool view_is_all = true;   // no filter, no sort: the view is every row in order
   uint64_t view_serial = 0;  // stage serial the view was made for
   bool view_dirty = true;
+  uint64_t view_request = 0;   // the latest view asked of a background job
+  bool view_computing = false;
   std::optional<size_t> selected_column;
   std::unique_ptr<workbench::StepDiff> diff;  // cells changed by the selected step
   uint64_t diff_serial = 0;
