@@ -48,7 +48,8 @@ void Workbench::State::draw_findings_panel() {
         const SuggestedFix& fix = finding.fixes[f];
         ImGui::PushID(static_cast<int>(f));
         ImGui::Separator();
-        const std::string op = fix.step.value("op", std::string("step"));
+        const auto op_field = fix.step.find("op");
+        const std::string op = op_field != fix.step.end() && op_field->is_string() ? op_field->get<std::string>() : "step";
         ImGui::Text("%s %s", f == 0 ? "Suggested fix:" : "Other fix:", op.c_str());
         ImGui::TextDisabled("%s changed, %s removed", plural(fix.preview.cells_changed, "cell", "cells").c_str(),
                             plural(fix.preview.rows_removed, "row", "rows").c_str());

@@ -166,7 +166,8 @@ void StepForm::open_new(const StepSpec& spec, size_t position, const Schema& col
 }
 
 void StepForm::open_edit(size_t step, const nlohmann::json& definition, const Schema& columns) {
-  const StepSpec* spec = find_step_spec(definition.value("op", std::string()));
+  const auto op = definition.find("op");
+  const StepSpec* spec = op != definition.end() && op->is_string() ? find_step_spec(op->get<std::string>()) : nullptr;
   if (!spec) return;
   open_new(*spec, step, columns);
   edited_step_ = step;
@@ -174,7 +175,8 @@ void StepForm::open_edit(size_t step, const nlohmann::json& definition, const Sc
 }
 
 void StepForm::fill_from(const nlohmann::json& definition) {
-  note_ = definition.value("note", std::string());
+  const auto note = definition.find("note");
+  note_ = note != definition.end() && note->is_string() ? note->get<std::string>() : std::string();
   auto column_index = [&](const std::string& name) -> std::optional<size_t> {
     for (size_t c = 0; c < columns_.size(); ++c)
       if (columns_[c].name == name) return c;

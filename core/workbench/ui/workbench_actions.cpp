@@ -2,6 +2,7 @@
 // functions the controls call (script_actions.md lists them). A shell runs
 // the next action only when the workbench is not busy, so every action sees
 // the screen as a person would after the previous one finished.
+#include <cstdlib>
 #include <sstream>
 
 #include "text_format.hpp"
@@ -14,8 +15,15 @@ namespace wb = workbench;
 namespace {
 
 std::optional<size_t> number_word(const std::string& word) {
-  if (word.empty() || word.find_first_not_of("0123456789") != std::string::npos) return std::nullopt;
-  return static_cast<size_t>(std::stoull(word));
+  if (word.empty() || word.size() > 12 || word.find_first_not_of("0123456789") != std::string::npos) return std::nullopt;
+  return static_cast<size_t>(std::strtoull(word.c_str(), nullptr, 10));
+}
+
+// The op of a step object typed in a script, when it names a form.
+const StepSpec* spec_of(const nlohmann::json& definition) {
+  const auto op = definition.find("op");
+  if (op == definition.end() || !op->is_string()) return nullptr;
+  return find_step_spec(op->get<std::string>());
 }
 
 std::optional<Dialect> dialect_word(const std::string& word) {
@@ -115,7 +123,13 @@ Status Workbench::run_action(std::string_view line) {
       if (!method) return usage_error("similar: unknown method " + arg[1]);
       s.similar.method = *method;
     }
-    if (arg.size() > 2) s.similar.threshold = std::stof(arg[2]);
+    if (arg.size() > 2) {
+      char* end = nullptr;
+      const float threshold = std::strtof(arg[2].c_str(), &end);
+      if (end == arg[2].c_str() || *end != '\0' || !(threshold >= 0.0f && threshold <= 1.0f))
+        return usage_error("similar: the threshold is a number from 0 to 1");
+      s.similar.threshold = threshold;
+    }
     s.side = SidePanel::similar;
     s.side_forced = true;
     s.queue(s.document->make_similar_job(*column, SimilarOptions{s.similar.method, s.similar.threshold}), nullptr);
@@ -148,7 +162,7 @@ Status Workbench::run_action(std::string_view line) {
   if (verb == "add-step") {
     nlohmann::json definition = nlohmann::json::parse(rest, nullptr, false);
     if (definition.is_discarded() || !definition.is_object()) return usage_error("add-step: not a JSON object: " + rest);
-    const StepSpec* spec = find_step_spec(definition.value("op", std::string()));
+    const StepSpec* spec = spec_of(definition);
     if (!spec) return usage_error("add-step: unknown op");
     // Through the form's fields, as a person would fill them, then added.
     const size_t at = s.document->selected_stage();
@@ -159,7 +173,7 @@ Status Workbench::run_action(std::string_view line) {
   if (verb == "open-form") {
     nlohmann::json definition = nlohmann::json::parse(rest, nullptr, false);
     if (definition.is_discarded() || !definition.is_object()) return usage_error("open-form: not a JSON object: " + rest);
-    const StepSpec* spec = find_step_spec(definition.value("op", std::string()));
+    const StepSpec* spec = spec_of(definition);
     if (!spec) return usage_error("open-form: unknown op");
     const size_t at = s.document->selected_stage();
     s.form.open_new(*spec, at, s.document->schema_at(at), &definition);
