@@ -26,6 +26,7 @@ build_packages=(
   build-essential cmake ninja-build pkg-config
   libicu-dev libhowardhinnant-date-dev doctest-dev nlohmann-json3-dev
   libcli11-dev libxxhash-dev libfast-float-dev
+  libsdl2-dev libimgui-dev libstb-dev fonts-dejavu-core
 )
 # Additionally needed by `test`: the WebAssembly toolchain and ICU tools for
 # web/deps, clang for the sanitizer/fuzz build, Python and node for the
@@ -42,6 +43,7 @@ test_packages=(
   python3 python3-numpy python3-pandas python3-jsonschema unicode-data bzip2 locales time dpkg-dev
   python3-jellyfish python3-levenshtein python3-html5lib chromium
   postgresql-15 mariadb-server python3-psycopg2 python3-pymysql sqlite3
+  xvfb xauth libgl1-mesa-dri
 )
 
 started_at=$EPOCHREALTIME
