@@ -36,17 +36,29 @@ class CsvWriter {
   Status finish();
 
  private:
+  // The text of a date, kept because a column's dates repeat.
+  struct CachedDate {
+    int32_t days = 0;
+    uint8_t length = 0;  // 0: nothing cached
+    char text[27];
+  };
+
   CsvWriter(ByteSink& sink, CsvWriteOptions options, DateFormat date_format);
-  void append_field(std::string_view value, bool only_field);
-  void append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field);
-  Status flush_if_full();
+  // Room for n more bytes at buffer_[used_].
+  Status make_room(size_t n);
+  Status append_field(std::string_view value, bool only_field);
+  Status append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field);
+  std::string_view date_text(int32_t days);
+  Status flush();
 
   ByteSink* sink_;
   CsvWriteOptions options_;
   DateFormat date_format_;
   std::array<uint8_t, 256> needs_quotes_{};
-  std::string buffer_;
+  std::string buffer_;  // written text is buffer_[0, used_)
+  size_t used_ = 0;
   std::string cell_;
+  std::vector<CachedDate> dates_;
 };
 
 // Canonical text form of one typed value (integer, decimal at scale, date,
