@@ -1,5 +1,6 @@
 #include "csv_writer.hpp"
 
+#include <algorithm>
 #include <cstdlib>
 #include <cstring>
 #include <utility>
@@ -44,18 +45,13 @@ Status CsvWriter::flush() {
   return sink_->write(std::string_view(buffer_.data(), n));
 }
 
-Status CsvWriter::make_room(size_t n) {
-  if (used_ + n <= buffer_.size()) return Ok{};
-  if (Status s = flush(); !s) return s;
-  if (n > buffer_.size()) buffer_.resize(n);
-  return Ok{};
-}
+void CsvWriter::grow(size_t n) { buffer_.resize(std::max(buffer_.size() * 2, used_ + n)); }
 
 // Copies the field while looking for a byte that needs quotes, and starts
 // again quoted when it finds one (rare: most fields are copied once).
-Status CsvWriter::append_field(std::string_view value, bool only_field) {
+void CsvWriter::append_field(std::string_view value, bool only_field) {
   const size_t n = value.size();
-  if (Status s = make_room(2 * n + 2); !s) return s;
+  make_room(2 * n + 2);
   char* out = buffer_.data() + used_;
   bool quote = only_field && n == 0;
   for (size_t i = 0; i < n && !quote; ++i) {
@@ -65,7 +61,7 @@ Status CsvWriter::append_field(std::string_view value, bool only_field) {
   }
   if (!quote) {
     used_ += n;
-    return Ok{};
+    return;
   }
   size_t at = 0;
   out[at++] = options_.quote;
@@ -75,7 +71,6 @@ Status CsvWriter::append_field(std::string_view value, bool only_field) {
   }
   out[at++] = options_.quote;
   used_ += at;
-  return Ok{};
 }
 
 std::string_view CsvWriter::date_text(int32_t days) {
@@ -93,7 +88,7 @@ std::string_view CsvWriter::date_text(int32_t days) {
   return cell_;
 }
 
-Status CsvWriter::append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field) {
+void CsvWriter::append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field) {
   if (chunk.is_null(row)) return append_field(options_.null_marker, only_field);
   switch (column.type()) {
     case Type::text: return append_field(chunk.text(row), only_field);
@@ -105,18 +100,20 @@ Status CsvWriter::append_cell(const Column& column, const ColumnChunk& chunk, si
   }
 }
 
+Status CsvWriter::end_row() {
+  const std::string& ending = options_.line_ending;
+  make_room(ending.size());
+  std::memcpy(buffer_.data() + used_, ending.data(), ending.size());
+  used_ += ending.size();
+  return used_ >= kFlushBytes ? flush() : Status(Ok{});
+}
+
 Status CsvWriter::write_row(std::span<const std::string_view> fields) {
   for (size_t i = 0; i < fields.size(); ++i) {
-    if (i) {
-      if (Status s = make_room(1); !s) return s;
-      buffer_[used_++] = options_.delimiter;
-    }
-    if (Status s = append_field(fields[i], fields.size() == 1); !s) return s;
+    if (i) append_byte(options_.delimiter);
+    append_field(fields[i], fields.size() == 1);
   }
-  if (Status s = make_room(options_.line_ending.size()); !s) return s;
-  std::memcpy(buffer_.data() + used_, options_.line_ending.data(), options_.line_ending.size());
-  used_ += options_.line_ending.size();
-  return used_ >= kFlushBytes ? flush() : Status(Ok{});
+  return end_row();
 }
 
 Status CsvWriter::write_table(const Table& table) {
@@ -135,7 +132,6 @@ Status CsvWriter::write_table(const Table& table) {
     const Column& col = table.column(c);
     cursors.push_back({&col, 0, 0, col.chunk_count() ? col.chunk(0).rows : 0});
   }
-  const std::string& line_ending = options_.line_ending;
   for (size_t row = 0; row < table.row_count(); ++row) {
     for (size_t c = 0; c < columns; ++c) {
       Cursor& at = cursors[c];
@@ -143,17 +139,10 @@ Status CsvWriter::write_table(const Table& table) {
         at.start = at.end;
         at.end += at.column->chunk(++at.k).rows;
       }
-      if (c) {
-        if (Status s = make_room(1); !s) return s;
-        buffer_[used_++] = options_.delimiter;
-      }
-      if (Status s = append_cell(*at.column, at.column->chunk(at.k), row - at.start, only_field); !s) return s;
+      if (c) append_byte(options_.delimiter);
+      append_cell(*at.column, at.column->chunk(at.k), row - at.start, only_field);
     }
-    if (Status s = make_room(line_ending.size()); !s) return s;
-    std::memcpy(buffer_.data() + used_, line_ending.data(), line_ending.size());
-    used_ += line_ending.size();
-    if (used_ >= kFlushBytes)
-      if (Status s = flush(); !s) return s;
+    if (Status s = end_row(); !s) return s;
   }
   return Ok{};
 }

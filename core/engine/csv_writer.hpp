@@ -44,11 +44,20 @@ class CsvWriter {
   };
 
   CsvWriter(ByteSink& sink, CsvWriteOptions options, DateFormat date_format);
-  // Room for n more bytes at buffer_[used_].
-  Status make_room(size_t n);
-  Status append_field(std::string_view value, bool only_field);
-  Status append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field);
+  // Room for n more bytes at buffer_[used_]: the buffer grows within a row
+  // and is written out between rows, once it holds enough.
+  void make_room(size_t n) {
+    if (used_ + n > buffer_.size()) grow(n);
+  }
+  void grow(size_t n);
+  void append_byte(char c) {
+    make_room(1);
+    buffer_[used_++] = c;
+  }
+  void append_field(std::string_view value, bool only_field);
+  void append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field);
   std::string_view date_text(int32_t days);
+  Status end_row();
   Status flush();
 
   ByteSink* sink_;
