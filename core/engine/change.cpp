@@ -1,6 +1,7 @@
 #include "change.hpp"
 
 #include <algorithm>
+#include <functional>
 #include <utility>
 
 namespace tamis {
@@ -18,14 +19,29 @@ void ChangeRecord::note_rejected(uint64_t line, const std::string& reason) {
 
 std::vector<RemovedRow> ChangeRecord::take_rejected() { return std::exchange(rejected_, {}); }
 
+namespace {
+uint64_t change_print(std::string_view before, std::string_view after) {
+  const std::hash<std::string_view> hash;
+  return hash(before) ^ (hash(after) * 0x9E3779B97F4A7C15u);
+}
+}  // namespace
+
+void ChangeRecord::add_sample(const ValueChange& sample, uint64_t print) {
+  samples_.push_back(sample);
+  sample_prints_.push_back(print);
+}
+
 void ChangeRecord::note_change(const std::string& column, std::string_view before, std::string_view after) {
   ++cells_changed[column];
-  for (ValueChange& s : samples_)
-    if (s.column == column && s.before == before && s.after == after) {
+  const uint64_t print = change_print(before, after);
+  for (size_t i = 0; i < samples_.size(); ++i) {
+    ValueChange& s = samples_[i];
+    if (sample_prints_[i] == print && s.before == before && s.after == after && s.column == column) {
       ++s.count;
       return;
     }
-  if (samples_.size() < kListedChanges) samples_.push_back({column, std::string(before), std::string(after), 1});
+  }
+  if (samples_.size() < kListedChanges) add_sample({column, std::string(before), std::string(after), 1}, print);
 }
 
 void ChangeRecord::merge(const ChangeRecord& other) {
@@ -41,7 +57,7 @@ void ChangeRecord::merge(const ChangeRecord& other) {
       return x.column == s.column && x.before == s.before && x.after == s.after;
     });
     if (it != samples_.end()) it->count += s.count;
-    else if (samples_.size() < kListedChanges) samples_.push_back(s);
+    else if (samples_.size() < kListedChanges) add_sample(s, change_print(s.before, s.after));
   }
   rejected_.insert(rejected_.end(), other.rejected_.begin(), other.rejected_.end());
   for (const auto& c : other.conflicts) conflicts.push_back(c);

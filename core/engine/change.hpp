@@ -48,7 +48,12 @@ class ChangeRecord {
   void merge(const ChangeRecord& other);
 
  private:
+  void add_sample(const ValueChange& sample, uint64_t print);
+
   std::vector<ValueChange> samples_;
+  // A hash of each sample's before and after, so that a change is compared
+  // with the samples as one number each (every changed cell is).
+  std::vector<uint64_t> sample_prints_;
   std::vector<RemovedRow> rejected_;
 };
 

@@ -1,6 +1,9 @@
 #include "csv_writer.hpp"
 
+#include <algorithm>
 #include <cstdlib>
+#include <cstring>
+#include <utility>
 
 #include "scalars.hpp"
 
@@ -33,54 +36,84 @@ CsvWriter::CsvWriter(ByteSink& sink, CsvWriteOptions options, DateFormat date_fo
     : sink_(&sink), options_(std::move(options)), date_format_(std::move(date_format)) {
   for (const char c : {options_.delimiter, options_.quote, '\r', '\n'})
     needs_quotes_[static_cast<unsigned char>(c)] = 1;
-  buffer_.reserve(kFlushBytes + (64 << 10));
+  buffer_.resize(kFlushBytes + (64 << 10));
 }
 
+Status CsvWriter::flush() {
+  if (used_ == 0) return Ok{};
+  const size_t n = std::exchange(used_, 0);
+  return sink_->write(std::string_view(buffer_.data(), n));
+}
+
+void CsvWriter::grow(size_t n) { buffer_.resize(std::max(buffer_.size() * 2, used_ + n)); }
+
+// Copies the field while looking for a byte that needs quotes, and starts
+// again quoted when it finds one (rare: most fields are copied once).
 void CsvWriter::append_field(std::string_view value, bool only_field) {
-  bool quote = only_field && value.empty();
-  for (const char c : value)
-    if (needs_quotes_[static_cast<unsigned char>(c)]) {
-      quote = true;
-      break;
-    }
+  const size_t n = value.size();
+  make_room(2 * n + 2);
+  char* out = buffer_.data() + used_;
+  bool quote = only_field && n == 0;
+  for (size_t i = 0; i < n && !quote; ++i) {
+    const char c = value[i];
+    quote = needs_quotes_[static_cast<unsigned char>(c)] != 0;
+    out[i] = c;
+  }
   if (!quote) {
-    buffer_ += value;
+    used_ += n;
     return;
   }
-  buffer_ += options_.quote;
+  size_t at = 0;
+  out[at++] = options_.quote;
   for (const char c : value) {
-    if (c == options_.quote) buffer_ += c;
-    buffer_ += c;
+    if (c == options_.quote) out[at++] = c;
+    out[at++] = c;
   }
-  buffer_ += options_.quote;
+  out[at++] = options_.quote;
+  used_ += at;
+}
+
+std::string_view CsvWriter::date_text(int32_t days) {
+  constexpr size_t kCachedDates = 4096;  // a power of two
+  if (dates_.empty()) dates_.resize(kCachedDates);
+  CachedDate& slot = dates_[static_cast<uint32_t>(days) & (kCachedDates - 1)];
+  if (slot.length > 0 && slot.days == days) return std::string_view(slot.text, slot.length);
+  cell_.clear();
+  date_format_.format(days, cell_);
+  if (!cell_.empty() && cell_.size() <= sizeof slot.text) {
+    slot.days = days;
+    slot.length = static_cast<uint8_t>(cell_.size());
+    std::memcpy(slot.text, cell_.data(), cell_.size());
+  }
+  return cell_;
 }
 
 void CsvWriter::append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field) {
-  if (chunk.is_null(row)) {
-    append_field(options_.null_marker, only_field);
-  } else if (column.type() == Type::text) {
-    append_field(chunk.text(row), only_field);
-  } else {
-    cell_.clear();
-    append_canonical(column, chunk, row, date_format_, cell_);
-    append_field(cell_, only_field);
+  if (chunk.is_null(row)) return append_field(options_.null_marker, only_field);
+  switch (column.type()) {
+    case Type::text: return append_field(chunk.text(row), only_field);
+    case Type::date: return append_field(date_text(static_cast<int32_t>(chunk.numbers[row])), only_field);
+    default:
+      cell_.clear();
+      append_canonical(column, chunk, row, date_format_, cell_);
+      return append_field(cell_, only_field);
   }
 }
 
-Status CsvWriter::flush_if_full() {
-  if (buffer_.size() < kFlushBytes) return Ok{};
-  Status s = sink_->write(buffer_);
-  buffer_.clear();
-  return s;
+Status CsvWriter::end_row() {
+  const std::string& ending = options_.line_ending;
+  make_room(ending.size());
+  std::memcpy(buffer_.data() + used_, ending.data(), ending.size());
+  used_ += ending.size();
+  return used_ >= kFlushBytes ? flush() : Status(Ok{});
 }
 
 Status CsvWriter::write_row(std::span<const std::string_view> fields) {
   for (size_t i = 0; i < fields.size(); ++i) {
-    if (i) buffer_ += options_.delimiter;
+    if (i) append_byte(options_.delimiter);
     append_field(fields[i], fields.size() == 1);
   }
-  buffer_ += options_.line_ending;
-  return flush_if_full();
+  return end_row();
 }
 
 Status CsvWriter::write_table(const Table& table) {
@@ -88,26 +121,34 @@ Status CsvWriter::write_table(const Table& table) {
   if (columns == 0) return Ok{};
   const bool only_field = columns == 1;
   // Walk chunk by chunk; columns of one table may be chunked differently.
-  std::vector<size_t> chunk_index(columns, 0);
+  struct Cursor {
+    const Column* column;
+    size_t k = 0;
+    size_t start = 0;  // table row of the chunk's first row
+    size_t end = 0;    // table row after the chunk's last row
+  };
+  std::vector<Cursor> cursors;
+  for (size_t c = 0; c < columns; ++c) {
+    const Column& col = table.column(c);
+    cursors.push_back({&col, 0, 0, col.chunk_count() ? col.chunk(0).rows : 0});
+  }
   for (size_t row = 0; row < table.row_count(); ++row) {
     for (size_t c = 0; c < columns; ++c) {
-      const Column& col = table.column(c);
-      size_t& k = chunk_index[c];
-      while (row >= col.chunk_start(k) + col.chunk(k).rows) ++k;
-      if (c) buffer_ += options_.delimiter;
-      append_cell(col, col.chunk(k), row - col.chunk_start(k), only_field);
+      Cursor& at = cursors[c];
+      while (row >= at.end) {
+        at.start = at.end;
+        at.end += at.column->chunk(++at.k).rows;
+      }
+      if (c) append_byte(options_.delimiter);
+      append_cell(*at.column, at.column->chunk(at.k), row - at.start, only_field);
     }
-    buffer_ += options_.line_ending;
-    if (Status s = flush_if_full(); !s) return s;
+    if (Status s = end_row(); !s) return s;
   }
   return Ok{};
 }
 
 Status CsvWriter::finish() {
-  if (!buffer_.empty()) {
-    if (Status s = sink_->write(buffer_); !s) return s;
-    buffer_.clear();
-  }
+  if (Status s = flush(); !s) return s;
   return sink_->commit();
 }
 

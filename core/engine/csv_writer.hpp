@@ -36,17 +36,38 @@ class CsvWriter {
   Status finish();
 
  private:
+  // The text of a date, kept because a column's dates repeat.
+  struct CachedDate {
+    int32_t days = 0;
+    uint8_t length = 0;  // 0: nothing cached
+    char text[27];
+  };
+
   CsvWriter(ByteSink& sink, CsvWriteOptions options, DateFormat date_format);
+  // Room for n more bytes at buffer_[used_]: the buffer grows within a row
+  // and is written out between rows, once it holds enough.
+  void make_room(size_t n) {
+    if (used_ + n > buffer_.size()) grow(n);
+  }
+  void grow(size_t n);
+  void append_byte(char c) {
+    make_room(1);
+    buffer_[used_++] = c;
+  }
   void append_field(std::string_view value, bool only_field);
   void append_cell(const Column& column, const ColumnChunk& chunk, size_t row, bool only_field);
-  Status flush_if_full();
+  std::string_view date_text(int32_t days);
+  Status end_row();
+  Status flush();
 
   ByteSink* sink_;
   CsvWriteOptions options_;
   DateFormat date_format_;
   std::array<uint8_t, 256> needs_quotes_{};
-  std::string buffer_;
+  std::string buffer_;  // written text is buffer_[0, used_)
+  size_t used_ = 0;
   std::string cell_;
+  std::vector<CachedDate> dates_;
 };
 
 // Canonical text form of one typed value (integer, decimal at scale, date,

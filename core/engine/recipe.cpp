@@ -361,10 +361,23 @@ Result<Table> RecipeRun::apply(const Table& batch) {
   return run_steps(recipe_.steps.size(), batch, states_, changes_);
 }
 
+Result<Table> RecipeRun::apply_step(size_t j, const Table& batch) {
+  auto next = recipe_.steps[j].step->apply(batch, states_[j].get(), changes_[j]);
+  if (!next) {
+    Error e = next.take_error();
+    if (!e.step) e.step = recipe_.steps[j].index;
+    return e;
+  }
+  return next;
+}
+
+void RecipeRun::take_rejected(size_t j, std::vector<Rejected>& into) {
+  for (RemovedRow& row : changes_[j].take_rejected()) into.push_back({recipe_.steps[j].index, std::move(row)});
+}
+
 std::vector<RecipeRun::Rejected> RecipeRun::take_rejected() {
   std::vector<Rejected> out;
-  for (size_t j = 0; j < changes_.size(); ++j)
-    for (RemovedRow& row : changes_[j].take_rejected()) out.push_back({recipe_.steps[j].index, std::move(row)});
+  for (size_t j = 0; j < changes_.size(); ++j) take_rejected(j, out);
   std::stable_sort(out.begin(), out.end(), [](const Rejected& a, const Rejected& b) { return a.row.line < b.row.line; });
   return out;
 }

@@ -93,6 +93,12 @@ class RecipeRun {
   Status observe(size_t pass, const Table& batch);
   void end_pass(size_t pass);
   Result<Table> apply(const Table& batch);
+  // The last pass one step at a time, for a runner that gives steps their
+  // own threads: apply(batch) is apply_step(j, ...) for every j in order.
+  // Step j must get the batches in source order and from one thread at a
+  // time; different steps may run on different threads at once.
+  size_t step_count() const { return recipe_.steps.size(); }
+  Result<Table> apply_step(size_t j, const Table& batch);
   Status finish();
   const std::vector<ChangeRecord>& changes() const { return changes_; }
   // The rows the steps rejected since the last call, in source-line order,
@@ -102,6 +108,8 @@ class RecipeRun {
     RemovedRow row;
   };
   std::vector<Rejected> take_rejected();
+  // The rows step j rejected since the last call, appended to `into`.
+  void take_rejected(size_t j, std::vector<Rejected>& into);
 
  private:
   Result<Table> run_steps(size_t end, const Table& batch, std::vector<std::unique_ptr<StepState>>& states,

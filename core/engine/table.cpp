@@ -31,14 +31,35 @@ void TextChunkBuilder::reserve(size_t rows, size_t bytes) {
   chunk_->bytes.reserve(bytes);
 }
 
-void TextChunkBuilder::append_null() {
+void TextChunkBuilder::mark_null(size_t row) {
   auto& validity = chunk_->validity;
-  const size_t row = rows();
-  if (validity.empty()) validity.assign((row >> 6) + 1, ~uint64_t{0});
   if ((row >> 6) >= validity.size()) validity.resize((row >> 6) + 1, ~uint64_t{0});
   validity[row >> 6] &= ~(uint64_t{1} << (row & 63));
   ++nulls_;
+}
+
+void TextChunkBuilder::append_null() {
+  mark_null(rows());
   chunk_->offsets.push_back(static_cast<uint32_t>(chunk_->bytes.size()));
+}
+
+void TextChunkBuilder::append_rows(const ColumnChunk& from, size_t begin, size_t end) {
+  if (begin >= end) return;
+  auto& c = *chunk_;
+  const size_t first_row = rows();
+  const uint32_t start = from.offsets[begin];
+  // Unsigned arithmetic modulo 2^32: the offsets move by the difference
+  // between where the run starts here and where it started there.
+  const uint32_t shift = static_cast<uint32_t>(c.bytes.size()) - start;
+  c.bytes.append(from.bytes, start, from.offsets[end] - start);
+  const size_t at = c.offsets.size();
+  c.offsets.resize(at + (end - begin));
+  uint32_t* out = c.offsets.data() + at;
+  const uint32_t* in = from.offsets.data() + begin + 1;
+  for (size_t i = 0; i < end - begin; ++i) out[i] = in[i] + shift;
+  if (from.has_nulls())
+    for (size_t i = begin; i < end; ++i)
+      if (from.is_null(i)) mark_null(first_row + (i - begin));
 }
 
 std::shared_ptr<const ColumnChunk> TextChunkBuilder::finish() {

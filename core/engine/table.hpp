@@ -60,11 +60,16 @@ class TextChunkBuilder {
     chunk_->offsets.push_back(static_cast<uint32_t>(chunk_->bytes.size()));
   }
   void append_null();
+  // Appends rows [begin, end) of a text chunk, NULLs included, with one copy
+  // of their bytes.
+  void append_rows(const ColumnChunk& from, size_t begin, size_t end);
   size_t rows() const { return chunk_->offsets.size() - 1; }
   size_t bytes() const { return chunk_->bytes.size(); }
   std::shared_ptr<const ColumnChunk> finish();
 
  private:
+  void mark_null(size_t row);
+
   std::shared_ptr<ColumnChunk> chunk_;
   size_t nulls_ = 0;
 };

@@ -18,6 +18,7 @@
 #include "report/run_report_html.hpp"
 #include "run_report.hpp"
 #include "run_support.hpp"
+#include "staged_run.hpp"
 
 namespace tamis::cli {
 
@@ -54,7 +55,7 @@ CLI::App* add_run_command(CLI::App& app, RunArgs& args) {
                   "Rejected rows allowed: a count (25) or a share of the rows read (0.5%); "
                   "default input.max_rejects, else 0");
   cmd->add_option("--batch-rows", args.batch_rows,
-                  "Testing aid: rows per batch (default 16384); results never depend on it");
+                  "Testing aid: rows per batch (default 4096); results never depend on it");
   return cmd;
 }
 
@@ -159,6 +160,30 @@ Status write_json_file(const std::string& path, const nlohmann::ordered_json& do
   return write_text_file(path, doc.dump(2) + "\n");
 }
 
+// The steps of the last pass in at most this many groups of neighbouring
+// steps, one thread each: enough stages for the operating system to keep
+// two cores busy, few enough that the batches in flight stay a handful.
+constexpr size_t kStepThreads = 6;
+
+std::vector<StagedRun::Stage> step_stages(RecipeRun& run) {
+  std::vector<StagedRun::Stage> stages;
+  const size_t steps = run.step_count();
+  const size_t groups = std::min(steps, kStepThreads);
+  for (size_t g = 0; g < groups; ++g) {
+    const size_t first = steps * g / groups, end = steps * (g + 1) / groups;
+    stages.push_back([&run, first, end](StagedBatch& batch) -> Status {
+      for (size_t j = first; j < end; ++j) {
+        auto next = run.apply_step(j, batch.table);
+        if (!next) return next.take_error();
+        batch.table = std::move(*next);
+        run.take_rejected(j, batch.rejected);
+      }
+      return Ok{};
+    });
+  }
+  return stages;
+}
+
 std::string metadata_url(const std::string& output, const std::string& metadata) {
   namespace fs = std::filesystem;
   const fs::path base = fs::absolute(fs::path(metadata)).parent_path();
@@ -182,10 +207,10 @@ int run_run(const RunArgs& args) {
   auto options = reading_options(recipe->input);
   if (!options) return report_error(options.error());
   options->lenient = true;
-  // Smaller than the reader's default: a run holds several batches at once
-  // (queued, being cleaned, being written), and 16384 rows keep that a few
-  // megabytes without costing speed.
-  options->batch_rows = args.batch_rows ? args.batch_rows : 16384;
+  // Far smaller than the reader's default: the last pass holds a batch in
+  // every stage and between every two stages (staged_run.hpp), and 4096
+  // rows keep that a few megabytes while a batch still fits a core's cache.
+  options->batch_rows = args.batch_rows ? args.batch_rows : 4096;
   const std::string display = args.input == "-" ? "<stdin>" : args.input;
 
   auto source = open_file_source(args.input);
@@ -286,14 +311,14 @@ int run_run(const RunArgs& args) {
   // Writes one batch's rejects in line order and stops the run as soon as a
   // count cap is exceeded (a share can only be judged at the end).
   auto reject_batch = [&](const Table* raw, std::vector<RejectedRecord> from_reader,
-                          std::vector<RecipeRun::Rejected> from_steps) -> Status {
+                          const std::vector<RemovedRow>& from_input, std::vector<RecipeRun::Rejected> from_steps) -> Status {
     std::vector<Reject> all;
     for (RejectedRecord& r : from_reader) all.push_back({r.line, "malformed record: " + r.reason, std::move(r.text)});
     auto record_of = [&](uint64_t line) {
       const auto row = raw ? row_at_line(*raw, line) : std::nullopt;
       return row ? record_text(*raw, *row, input_delimiter) : std::string();
     };
-    for (const RemovedRow& r : failing) all.push_back({r.line, "input: " + r.reason, record_of(r.line)});
+    for (const RemovedRow& r : from_input) all.push_back({r.line, "input: " + r.reason, record_of(r.line)});
     for (const RecipeRun::Rejected& r : from_steps) {
       const std::string op = recipe->steps[static_cast<size_t>(r.step)].op;
       all.push_back({r.row.line, "step " + std::to_string(r.step + 1) + " (" + op + "): " + r.row.reason,
@@ -325,34 +350,39 @@ int run_run(const RunArgs& args) {
   Progress progress(passes > 1 ? "pass " + std::to_string(passes) + " of " + std::to_string(passes) : "running",
                     reader->total_bytes());
   {
-    BatchPipeline batches(*reader, 2);
+    auto prepare = [&](StagedBatch& batch) -> Status {
+      auto prepared = check->apply(batch.raw, batch.failing);
+      if (!prepared) return prepared.take_error();
+      batch.table = std::move(*prepared);
+      return Ok{};
+    };
+    StagedRun staged(*reader, prepare, step_stages(run));
     for (;;) {
-      auto batch = batches.next();
-      if (!batch) return report_error(batch.error());
-      if (!batch->has_value()) break;
-      const Table& raw = **batch;
-      failing.clear();
-      auto prepared = check->apply(raw, failing);
-      if (!prepared) return report_error(prepared.error());
-      facts.rows_failing_input_types += failing.size();
-      if (!failing.empty() && !facts.first_failing_input_type_line)
-        facts.first_failing_input_type_line = failing.front().line;
-      auto out = run.apply(*prepared);
-      if (!out) return report_error(out.error());
+      auto item = staged.next();
+      if (!item) return report_error(item.error());
+      if (!item->has_value()) break;
+      StagedBatch& batch = **item;
+      const Table& raw = batch.raw;
+      facts.rows_failing_input_types += batch.failing.size();
+      if (!batch.failing.empty() && !facts.first_failing_input_type_line)
+        facts.first_failing_input_type_line = batch.failing.front().line;
       const uint64_t through = raw.row_count() ? raw.source_line(raw.row_count() - 1) : 0;
-      if (Status s = reject_batch(&raw, reader_rejects.take_through(through), run.take_rejected()); !s)
+      if (Status s = reject_batch(&raw, reader_rejects.take_through(through), batch.failing,
+                                  std::move(batch.rejected));
+          !s)
         return report_error(s.error());
-      failing.clear();
       if (cap->count && cap->exceeded(rejected, 0)) return over_cap(0);
-      if (Status s = writer->write_table(*out); !s) return report_error(s.error());
-      if (!args.metadata.empty()) nulls.observe(*out);
-      if (!written_schema) written_schema = schema_of(*out);
-      facts.rows_written += out->row_count();
-      progress.update(reader->bytes_read());
+      const Table& out = batch.table;
+      if (Status s = writer->write_table(out); !s) return report_error(s.error());
+      if (!args.metadata.empty()) nulls.observe(out);
+      if (!written_schema) written_schema = schema_of(out);
+      facts.rows_written += out.row_count();
+      progress.update(batch.bytes_read);
     }
   }
   progress.finish();
-  if (Status s = reject_batch(nullptr, reader_rejects.take_through(std::numeric_limits<uint64_t>::max()), {}); !s)
+  if (Status s = reject_batch(nullptr, reader_rejects.take_through(std::numeric_limits<uint64_t>::max()), {}, {});
+      !s)
     return report_error(s.error());
   if (Status s = run.finish(); !s) return report_error(s.error());
   facts.read = reader->report();

@@ -269,4 +269,22 @@ TEST_CASE("unit_csv_writer: output larger than the write buffer arrives whole an
   CHECK(written == expected);
 }
 
+TEST_CASE("unit_csv_writer: dates that share a slot of the writer's date cache keep their own text") {
+  // 4096 days apart (the cache's size), and before 1970: day numbers checked
+  // with Python datetime, (date - date(1970, 1, 1)).days.
+  const Table t = make_table({"d"}, {typed_column(Type::date, 0, {19527, 19527 + 4096, 19527, -4096, 0, -4096})});
+  CHECK(written_table(t) == "2023-06-19\n2034-09-05\n2023-06-19\n1958-10-15\n1970-01-01\n1958-10-15\n");
+  CsvWriteOptions options;
+  options.date_format = "%d,%m,%Y";
+  CHECK(written_table(t, options) ==
+        "\"19,06,2023\"\n\"05,09,2034\"\n\"19,06,2023\"\n\"15,10,1958\"\n\"01,01,1970\"\n\"15,10,1958\"\n");
+}
+
+TEST_CASE("unit_csv_writer: a field longer than the write buffer is written whole") {
+  const std::string big(3u << 20, 'q');
+  const std::string quoted = big + "\"end";
+  const std::string written = written_table(make_table({"a", "b"}, {text_column({big, "x"}), text_column({"y", quoted})}));
+  CHECK(written == big + ",y\nx,\"" + big + "\"\"end\"\n");
+}
+
 }  // TEST_SUITE

@@ -182,6 +182,30 @@ TEST_CASE("unit_table: NULL is a validity bit, not the empty string") {
   CHECK(without->text(0) == "y");
 }
 
+TEST_CASE("unit_table: append_rows copies runs of rows, NULLs included, after rows already built") {
+  TextChunkBuilder source;
+  for (const char* v : {"oak", "", "ash", "elm", "yew"}) source.append(v);
+  source.append_null();
+  source.append("fir");
+  const auto from = source.finish();
+  TextChunkBuilder builder;
+  builder.append("first");
+  builder.append_rows(*from, 1, 3);
+  builder.append_null();
+  builder.append_rows(*from, 4, 7);
+  builder.append_rows(*from, 2, 2);
+  builder.append("last");
+  const auto chunk = builder.finish();
+  REQUIRE(chunk->rows == 8);
+  const std::vector<std::string> texts = {"first", "", "ash", "", "yew", "", "fir", "last"};
+  const std::vector<bool> nulls = {false, false, false, true, false, true, false, false};
+  for (size_t i = 0; i < chunk->rows; ++i) {
+    CAPTURE(i);
+    CHECK(chunk->is_null(i) == nulls[i]);
+    if (!nulls[i]) CHECK(chunk->text(i) == texts[i]);
+  }
+}
+
 TEST_CASE("unit_table: memory_bytes counts a shared chunk once") {
   const ColumnPtr column = text_column({{std::string(1000, 'a'), std::string(3000, 'b')}});
   const ColumnPtr lines = line_column(2, 2);

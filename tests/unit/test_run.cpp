@@ -8,6 +8,7 @@
 #include <nlohmann/json.hpp>
 
 #include <algorithm>
+#include <array>
 #include <cstdint>
 #include <filesystem>
 #include <fstream>
@@ -149,8 +150,10 @@ Outcome whole_table(const CompiledRecipe& compiled, const std::string& csv) {
 }
 
 // What `tamis run` does, without the threads: every pass reads the file
-// again in batches of batch_rows, the last one applies and writes.
-Outcome streamed(const CompiledRecipe& compiled, const std::string& csv, size_t batch_rows) {
+// again in batches of batch_rows, the last one applies and writes. With
+// step_by_step, the last pass runs the steps one at a time and takes each
+// one's rejected rows, as the threaded runner's stages do.
+Outcome streamed(const CompiledRecipe& compiled, const std::string& csv, size_t batch_rows, bool step_by_step = false) {
   Outcome o;
   RecipeRun run(compiled);
   auto reader_for = [&] {
@@ -183,12 +186,22 @@ Outcome streamed(const CompiledRecipe& compiled, const std::string& csv, size_t 
     auto batch = reader->next_batch();
     REQUIRE(batch.ok());
     if (!batch->has_value()) break;
-    auto out = run.apply(**batch);
+    Result<Table> out = **batch;
+    std::vector<RecipeRun::Rejected> rejected;
+    if (step_by_step) {
+      for (size_t j = 0; j < run.step_count() && out; ++j) {
+        out = run.apply_step(j, *out);
+        run.take_rejected(j, rejected);
+      }
+    } else {
+      out = run.apply(**batch);
+      rejected = run.take_rejected();
+    }
     if (!out) {
       o.error = out.error().to_string();
       return o;
     }
-    for (const auto& r : run.take_rejected()) o.rejects.push_back(std::to_string(r.row.line) + ": " + r.row.reason);
+    for (const auto& r : rejected) o.rejects.push_back(std::to_string(r.row.line) + ": " + r.row.reason);
     REQUIRE(writer->write_table(*out).ok());
   }
   if (const Status s = run.finish(); !s) {
@@ -260,6 +273,27 @@ TEST_CASE("unit_run: every registered step streams to the same result as the who
           CHECK(stream.changes[j].cells_changed == whole.changes[j].cells_changed);
           CHECK(stream.changes[j].conflicts.size() == whole.changes[j].conflicts.size());
         }
+        // Step by step, the change records are the same to the last sample:
+        // the batches reach every step in the same order.
+        const Outcome stepwise = streamed(*compiled, csv, batch_rows, true);
+        CHECK(stepwise.error == stream.error);
+        CHECK(stepwise.csv == stream.csv);
+        CHECK(stepwise.rejects == stream.rejects);
+        REQUIRE(stepwise.changes.size() == stream.changes.size());
+        for (size_t j = 0; j < stream.changes.size(); ++j) {
+          CHECK(stepwise.changes[j].rows_removed == stream.changes[j].rows_removed);
+          CHECK(stepwise.changes[j].cells_changed == stream.changes[j].cells_changed);
+          CHECK(stepwise.changes[j].warnings == stream.changes[j].warnings);
+          REQUIRE(stepwise.changes[j].samples().size() == stream.changes[j].samples().size());
+          for (size_t k = 0; k < stream.changes[j].samples().size(); ++k) {
+            const ValueChange& a = stepwise.changes[j].samples()[k];
+            const ValueChange& b = stream.changes[j].samples()[k];
+            CHECK(a.column == b.column);
+            CHECK(a.before == b.before);
+            CHECK(a.after == b.after);
+            CHECK(a.count == b.count);
+          }
+        }
       }
       // The data exercises the step: a sample that changes nothing proves nothing.
       if (whole.error.empty()) {
@@ -269,6 +303,32 @@ TEST_CASE("unit_run: every registered step streams to the same result as the who
       }
     }
   }
+}
+
+TEST_CASE("unit_run: a change record samples the first distinct changes with their exact counts") {
+  // The model: every change in order, the first kListedChanges distinct
+  // (column, before, after) triples listed with how often each occurred.
+  std::vector<std::array<std::string, 3>> order;
+  std::map<std::array<std::string, 3>, uint64_t> counts;
+  ChangeRecord change;
+  uint32_t seed = 7;
+  for (int i = 0; i < 5000; ++i) {
+    seed = seed * 1664525u + 1013904223u;
+    const std::array<std::string, 3> triple = {(seed >> 9) % 3 ? "a" : "b", std::to_string((seed >> 12) % 40),
+                                               std::to_string((seed >> 20) % 2)};
+    if (counts[triple]++ == 0) order.push_back(triple);
+    change.note_change(triple[0], triple[1], triple[2]);
+  }
+  REQUIRE(order.size() > ChangeRecord::kListedChanges);
+  REQUIRE(change.samples().size() == ChangeRecord::kListedChanges);
+  for (size_t k = 0; k < ChangeRecord::kListedChanges; ++k) {
+    const ValueChange& sample = change.samples()[k];
+    CHECK(sample.column == order[k][0]);
+    CHECK(sample.before == order[k][1]);
+    CHECK(sample.after == order[k][2]);
+    CHECK(sample.count == counts[order[k]]);
+  }
+  CHECK(change.cells_changed.at("a") + change.cells_changed.at("b") == 5000);
 }
 
 TEST_CASE("unit_run: every recipe in the repository survives load -> save -> load") {

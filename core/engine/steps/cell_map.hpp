@@ -1,7 +1,8 @@
 // The shared loop of the steps that rewrite text cells one by one (trim,
 // collapse_spaces, change_case, normalize_unicode, replace_text, map_values,
 // to_null). A chunk in which no cell changes is shared with the input, not
-// copied, so a step that touches few rows costs little memory.
+// copied, so a step that touches few rows costs little memory; in a chunk
+// that changes, the runs of unchanged rows are copied a run at a time.
 #pragma once
 
 #include <span>
@@ -36,10 +37,7 @@ ColumnPtr map_text_column(const Column& column, const std::string& name, ChangeR
         builder.reserve(chunk.rows, chunk.bytes.size());
         changed = true;
       }
-      for (; copied < i; ++copied) {
-        if (chunk.is_null(copied)) builder.append_null();
-        else builder.append(chunk.text(copied));
-      }
+      builder.append_rows(chunk, copied, i);
       if (r == CellResult::null) {
         builder.append_null();
         change.note_change(name, value, "NULL");
@@ -53,10 +51,7 @@ ColumnPtr map_text_column(const Column& column, const std::string& name, ChangeR
       out->append_chunk(column.chunk_ptr(k));
       continue;
     }
-    for (; copied < chunk.rows; ++copied) {
-      if (chunk.is_null(copied)) builder.append_null();
-      else builder.append(chunk.text(copied));
-    }
+    builder.append_rows(chunk, copied, chunk.rows);
     out->append_chunk(builder.finish());
   }
   return out;

@@ -24,8 +24,8 @@ std::shared_ptr<const ColumnChunk> select_chunk(const ColumnChunk& chunk, bool i
     for (size_t i = 0; i < chunk.rows; ++i)
       if (keep[i]) kept_bytes += chunk.offsets[i + 1] - chunk.offsets[i];
     out->bytes.reserve(kept_bytes);
-    out->offsets.reserve(kept + 1);
-    out->offsets.push_back(0);
+    out->offsets.resize(kept + 1);
+    uint32_t* offset = out->offsets.data() + 1;
     // Runs of kept rows are copied with one append each.
     for (size_t i = 0; i < chunk.rows;) {
       if (!keep[i]) {
@@ -36,7 +36,7 @@ std::shared_ptr<const ColumnChunk> select_chunk(const ColumnChunk& chunk, bool i
       while (j < chunk.rows && keep[j]) ++j;
       const uint32_t base = static_cast<uint32_t>(out->bytes.size()) - chunk.offsets[i];
       out->bytes.append(chunk.bytes, chunk.offsets[i], chunk.offsets[j] - chunk.offsets[i]);
-      for (size_t r = i; r < j; ++r) out->offsets.push_back(chunk.offsets[r + 1] + base);
+      for (size_t r = i; r < j; ++r) *offset++ = chunk.offsets[r + 1] + base;
       i = j;
     }
   } else {

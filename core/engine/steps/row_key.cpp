@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cstdlib>
 #include <cstring>
+#include <new>
 
 #define XXH_INLINE_ALL
 #include <unicode/uchar.h>
@@ -195,7 +196,13 @@ RowIndexTuning default_row_index_tuning() {
   return tuning;
 }
 
-RowIndex::RowIndex(RowIndexTuning tuning) : tuning_(tuning), slots_(1024, 0) {}
+RowIndex::SlotTable RowIndex::empty_slots(size_t count) {
+  SlotTable slots(static_cast<Slot*>(std::calloc(count, sizeof(Slot))));
+  if (!slots) throw std::bad_alloc();
+  return slots;
+}
+
+RowIndex::RowIndex(RowIndexTuning tuning) : tuning_(tuning), slots_(empty_slots(1024)), slot_count_(1024) {}
 
 RowIndex::~RowIndex() {
   if (spill_) std::fclose(spill_);
@@ -289,19 +296,22 @@ Status RowIndex::set_line(uint64_t record, uint64_t line) {
 }
 
 void RowIndex::grow() {
-  std::vector<Slot> bigger(slots_.size() * 2, 0);
-  const size_t mask = bigger.size() - 1;
-  for (const Slot s : slots_) {
+  const size_t count = slot_count_ * 2;
+  SlotTable bigger = empty_slots(count);
+  const size_t mask = count - 1;
+  for (size_t k = 0; k < slot_count_; ++k) {
+    const Slot s = slots_[k];
     if (!s) continue;
     size_t i = slot_hash(s) & mask;
     while (bigger[i]) i = (i + 1) & mask;
     bigger[i] = s;
   }
   slots_ = std::move(bigger);
+  slot_count_ = count;
 }
 
 Result<std::pair<size_t, std::optional<RowIndex::Entry>>> RowIndex::probe(std::string_view key, uint32_t hash) {
-  const size_t mask = slots_.size() - 1;
+  const size_t mask = slot_count_ - 1;
   for (size_t i = hash & mask;; i = (i + 1) & mask) {
     const Slot s = slots_[i];
     if (!s) return std::pair<size_t, std::optional<Entry>>{i, std::nullopt};
@@ -315,7 +325,7 @@ Result<std::pair<size_t, std::optional<RowIndex::Entry>>> RowIndex::probe(std::s
 }
 
 void RowIndex::prefetch(uint64_t hash) const {
-  __builtin_prefetch(&slots_[(hash >> 32) & (slots_.size() - 1)]);
+  __builtin_prefetch(&slots_[(hash >> 32) & (slot_count_ - 1)]);
 }
 
 Result<std::optional<RowIndex::Entry>> RowIndex::find(std::string_view key, uint64_t hash) {
@@ -325,7 +335,7 @@ Result<std::optional<RowIndex::Entry>> RowIndex::find(std::string_view key, uint
 }
 
 Result<std::pair<RowIndex::Entry, bool>> RowIndex::insert(std::string_view key, uint64_t full_hash, uint64_t line) {
-  if ((count_ + 1) * 4 > slots_.size() * 3) grow();
+  if ((count_ + 1) * 4 > slot_count_ * 3) grow();
   const auto hash = static_cast<uint32_t>(full_hash >> 32);
   auto found = probe(key, hash);
   if (!found) return found.take_error();

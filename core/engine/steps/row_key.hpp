@@ -19,6 +19,7 @@
 
 #include <cstdint>
 #include <cstdio>
+#include <cstdlib>
 #include <memory>
 #include <optional>
 #include <span>
@@ -131,8 +132,17 @@ class RowIndex {
   Status flush_spill();
   void grow();
 
+  // Zeroed by calloc, which takes fresh pages from the system already zero
+  // instead of writing every byte of a grown table.
+  struct FreeSlots {
+    void operator()(Slot* slots) const { std::free(slots); }
+  };
+  using SlotTable = std::unique_ptr<Slot[], FreeSlots>;
+  static SlotTable empty_slots(size_t count);
+
   RowIndexTuning tuning_;
-  std::vector<Slot> slots_;
+  SlotTable slots_;
+  size_t slot_count_ = 0;  // a power of two
   size_t count_ = 0;
   uint64_t collisions_ = 0;
   std::string memory_;           // records [line u64][length u32][key][padding], while they fit the budget

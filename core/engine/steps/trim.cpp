@@ -1,5 +1,7 @@
 #include "steps/trim.hpp"
 
+#include <array>
+
 #include "sql/sql_step.hpp"
 #include "steps/cell_map.hpp"
 #include "utf8.hpp"
@@ -11,7 +13,9 @@ namespace {
 class Trim final : public Step {
  public:
   Trim(std::vector<size_t> columns, std::string side, std::optional<std::u32string> chars, Schema input)
-      : columns_(std::move(columns)), side_(std::move(side)), chars_(std::move(chars)), input_(std::move(input)) {}
+      : columns_(std::move(columns)), side_(std::move(side)), chars_(std::move(chars)), input_(std::move(input)) {
+    for (char32_t c = 0; c < 0x80; ++c) ascii_trimmed_[c] = trimmed(c);
+  }
 
   std::string_view op() const override { return "trim"; }
 
@@ -25,14 +29,28 @@ class Trim final : public Step {
     const bool leading = side_ != "trailing", trailing = side_ != "leading";
     return map_text_cells(batch, columns_, change, [&](std::string_view v, std::string& out) {
       size_t begin = 0, end = v.size();
+      // An ASCII byte is a whole character in UTF-8: it is looked up, and
+      // only other bytes are decoded.
       if (leading)
         while (begin < end) {
+          const auto byte = static_cast<unsigned char>(v[begin]);
+          if (byte < 0x80) {
+            if (!ascii_trimmed_[byte]) break;
+            ++begin;
+            continue;
+          }
           size_t i = begin;
           if (!trimmed(utf8::next(v, i))) break;
           begin = i;
         }
       if (trailing)
         while (end > begin) {
+          const auto byte = static_cast<unsigned char>(v[end - 1]);
+          if (byte < 0x80) {
+            if (!ascii_trimmed_[byte]) break;
+            --end;
+            continue;
+          }
           size_t i = end;
           if (!trimmed(utf8::previous(v, i))) break;
           end = i;
@@ -88,6 +106,7 @@ class Trim final : public Step {
   std::string side_;
   std::optional<std::u32string> chars_;
   Schema input_;
+  std::array<bool, 0x80> ascii_trimmed_{};
 };
 
 }  // namespace

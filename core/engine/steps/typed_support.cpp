@@ -1,5 +1,7 @@
 #include "steps/typed_support.hpp"
 
+#include <vector>
+
 #include "csv_writer.hpp"
 #include "dates.hpp"
 #include "utf8.hpp"
@@ -20,8 +22,25 @@ std::string_view on_error_name(OnError on_error) {
 void append_canonical_value(Type type, int scale, int64_t value, std::string& out) {
   // The CSV writer's own function, so a step's canonical text and the
   // written file can never disagree. The one-row chunk and the column are
-  // kept between calls: this runs for every converted cell.
+  // kept between calls: this runs for every converted cell. So does the
+  // text of recent dates, since a column's dates repeat.
   static const DateFormat iso = DateFormat::compile("%Y-%m-%d").value();
+  if (type == Type::date) {
+    struct Cached {
+      int64_t days = 0;
+      std::string text;  // empty: nothing cached
+    };
+    constexpr size_t kCachedDates = 1024;  // a power of two
+    thread_local std::vector<Cached> dates(kCachedDates);
+    Cached& slot = dates[static_cast<uint64_t>(value) & (kCachedDates - 1)];
+    if (slot.text.empty() || slot.days != value) {
+      slot.days = value;
+      slot.text.clear();
+      iso.format(static_cast<int32_t>(value), slot.text);
+    }
+    out += slot.text;
+    return;
+  }
   thread_local ColumnChunk one = [] {
     ColumnChunk c;
     c.rows = 1;
