@@ -46,12 +46,18 @@ EXPORTED = {
     'drop_columns': {'op': 'drop_columns', 'columns': ['note']},
     'rename_columns': {'op': 'rename_columns', 'map': {'site': 'site `name`'}},
     'reorder_columns': {'op': 'reorder_columns', 'columns': ['note']},
+    'map_values_ignore_case': {'op': 'map_values', 'column': 'district', 'ignore_case': True,
+                               'map': {'Straße': 'Street', 'fenmore': 'Fenmoor'}},
+    'parse_date': {'op': 'parse_date', 'column': 'note', 'formats': ['%Y-%m-%d', '%d.%m.%y']},
+    'parse_date_keep': {'op': 'parse_date', 'column': 'note', 'formats': ['%m/%d/%Y'], 'on_error': 'keep'},
+    'parse_number': {'op': 'parse_number', 'column': 'note', 'scale': 1, 'decimal_mark': ',', 'group_mark': '.',
+                     'strip': '\u00a0', 'percent': True},
+    'parse_number_reject': {'op': 'parse_number', 'column': 'note', 'scale': 0, 'on_error': 'reject'},
+    'split_column': {'op': 'split_column', 'column': 'site', 'separator': ' ', 'into': ['a', 'b', 'c']},
 }
 REFUSED = {
     'normalize_unicode': {'op': 'normalize_unicode', 'columns': ['site'], 'form': 'NFC'},
-    'parse_date': {'op': 'parse_date', 'column': 'note', 'formats': ['%Y-%m-%d']},
-    'parse_number': {'op': 'parse_number', 'column': 'note', 'scale': 1},
-    'split_column': {'op': 'split_column', 'column': 'site', 'separator': ' ', 'into': ['a', 'b']},
+    'parse_number_data_scale': {'op': 'parse_number', 'column': 'note'},
     'replace_text_regex': {'op': 'replace_text', 'columns': ['site'], 'find': 'a+', 'replace': 'b', 'match': 'regex'},
     'change_case': {'op': 'change_case', 'columns': ['site'], 'to': 'upper'},
 }

@@ -28,6 +28,45 @@ std::string SqlContext::column_list(std::string_view qualifier) const {
   return out + prefix + line();
 }
 
+std::vector<std::string> stop_unless_zero(const SqlContext& sql, std::string_view suffix,
+                                          const std::string& failing_count, const std::string& message) {
+  if (sql.dialect == Dialect::spark)
+    return {std::string("SELECT CASE WHEN (") + failing_count + std::string(") > 0 THEN raise_error(") + sql.text(message) +
+            ") END AS tamis_check"};
+  const std::string guard_name =
+      sql.table_prefix + std::string("_step_") + std::to_string(sql.step_number) + "_" + std::string(suffix);
+  const std::string guard = sql.name(guard_name);
+  return {std::string("DROP TABLE IF EXISTS ") + guard,
+          std::string("CREATE TABLE ") + guard + " (\n  failing_rows BIGINT,\n  CONSTRAINT " +
+              sql.name(guard_name + "_passes") + " CHECK (failing_rows = 0)\n)",
+          std::string("INSERT INTO ") + guard + std::string(" (failing_rows)\n") + failing_count,
+          std::string("DROP TABLE ") + guard};
+}
+
+Result<SqlStepText> conversion_sql(const SqlContext& sql, size_t c, const std::string& converted,
+                                   const std::function<std::string(const std::string&)>& as_text,
+                                   OnError on_error, std::string_view op) {
+  SqlStepText out;
+  const std::string x = sql.column(c);
+  switch (on_error) {
+    case OnError::null: out.select = sql.select_replacing({{c, converted}}); break;
+    case OnError::keep:
+      out.select = sql.select_replacing({{c, std::string("COALESCE(") + as_text(converted) + ", " + x + ")"}});
+      break;
+    case OnError::reject:
+      if (sql.rejects_allowed)
+        return usage_error("on_error reject with rejected rows allowed (input.max_rejects) needs a rejects file, "
+                           "which a SQL script cannot write");
+      out.statements = stop_unless_zero(
+          sql, "rejects",
+          std::string("SELECT COUNT(*) FROM ") + sql.from + std::string(" WHERE ") + x + std::string(" IS NOT NULL AND ") + converted + " IS NULL",
+          std::string("step ") + std::to_string(sql.step_number) + " (" + std::string(op) + ") rejected rows, and input.max_rejects allows none");
+      out.select = sql.select_replacing({{c, converted}});
+      break;
+  }
+  return out;
+}
+
 Result<SqlStepText> Step::to_sql(const SqlContext& context) const {
   return usage_error(std::string("no ") + std::string(dialect_name(context.dialect)) + std::string(" SQL is written for ") + std::string(op()));
 }
