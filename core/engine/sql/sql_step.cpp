@@ -1,5 +1,7 @@
 #include "sql/sql_step.hpp"
 
+#include <algorithm>
+
 namespace tamis {
 
 std::string SqlContext::select_replacing(const std::vector<std::pair<size_t, std::string>>& replaced,
@@ -26,6 +28,36 @@ std::string SqlContext::column_list(std::string_view qualifier) const {
   std::string out;
   for (size_t c = 0; c < input.size(); ++c) out += prefix + column(c) + ", ";
   return out + prefix + line();
+}
+
+ReplacedValues replaced_values(const SqlContext& sql, const std::vector<std::string>& inputs,
+                               const std::vector<std::pair<std::string, std::string>>& pairs, std::string_view prefix) {
+  ReplacedValues out;
+  out.from = sql.from;
+  out.results = inputs;
+  if (sql.dialect != Dialect::sqlite) {
+    for (std::string& r : out.results) r = sql::replace_each(sql.dialect, r, pairs);
+    return out;
+  }
+  constexpr size_t kPerLayer = 16;
+  for (size_t first = 0, layer = 1; first < pairs.size(); first += kPerLayer, ++layer) {
+    const std::vector<std::pair<std::string, std::string>> some(
+        pairs.begin() + static_cast<std::ptrdiff_t>(first),
+        pairs.begin() + static_cast<std::ptrdiff_t>(std::min(pairs.size(), first + kPerLayer)));
+    const std::string table = std::string(prefix) + "_" + std::to_string(layer);
+    std::string select = out.with.empty() ? "WITH " : ",\n";
+    select += table + " AS (SELECT *";
+    for (size_t k = 0; k < out.results.size(); ++k) {
+      const std::string name = table + "_" + std::to_string(k);
+      select += ",\n        " + sql::replace_each(sql.dialect, out.results[k], some) + " AS " + name;
+      out.results[k] = name;
+    }
+    select += "\n FROM " + out.from + ")";
+    out.with += select;
+    out.from = table;
+  }
+  if (!out.with.empty()) out.with += "\n";
+  return out;
 }
 
 std::vector<std::string> stop_unless_zero(const SqlContext& sql, std::string_view suffix,

@@ -53,6 +53,21 @@ struct SqlContext {
   std::string column_list(std::string_view qualifier = {}) const;
 };
 
+// Nested REPLACE of `pairs` over each of `inputs` (expressions over the
+// previous table). SQLite's parser holds only about 33 nested calls, and
+// nested subqueries count too, so there the REPLACE calls are spread over a
+// chain of common table expressions of at most 16 each, which add columns
+// named <prefix>_<input>_<layer>; elsewhere they stay one expression. The
+// step's SELECT is `with` followed by a SELECT from `from`, using each
+// input's result.
+struct ReplacedValues {
+  std::string with;
+  std::string from;
+  std::vector<std::string> results;
+};
+ReplacedValues replaced_values(const SqlContext& sql, const std::vector<std::string>& inputs,
+                               const std::vector<std::pair<std::string, std::string>>& pairs, std::string_view prefix);
+
 // Statements that stop the script with `message` when the query
 // `failing_count` (one row, one number) gives more than 0: a CHECK
 // constraint on a scratch table (raise_error in Spark).

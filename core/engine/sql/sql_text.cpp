@@ -272,7 +272,7 @@ const std::vector<std::pair<char32_t, std::u32string>>& case_foldings() {
 
 }  // namespace
 
-std::optional<std::string> case_fold_for(Dialect dialect, const std::string& x, const std::u32string& alphabet) {
+std::optional<std::vector<std::pair<std::string, std::string>>> case_folding_for(const std::u32string& alphabet) {
   const auto& foldings = case_foldings();
   auto changed_by_folding = [&](char32_t c) {
     return std::binary_search(foldings.begin(), foldings.end(), std::make_pair(c, std::u32string()),
@@ -289,7 +289,7 @@ std::optional<std::string> case_fold_for(Dialect dialect, const std::string& x, 
     for (const char32_t f : folded) utf8::append(to, f);
     pairs.emplace_back(std::move(from), std::move(to));
   }
-  return replace_each(dialect, x, pairs);
+  return pairs;
 }
 
 std::string char_length(Dialect dialect, const std::string& x) {

@@ -67,14 +67,15 @@ std::string exact_key(Dialect dialect, const std::string& x, Type type);
 std::string replace_each(Dialect dialect, const std::string& x,
                          const std::vector<std::pair<std::string, std::string>>& pairs);
 
-// Unicode full case folding of x (as the engine's fold_case), for comparing
-// with texts made of the characters of `alphabet`: nested REPLACE calls fold
-// every character whose folded form lies in the alphabet. Any other
-// character that folding changes is left as it is; such a character never
-// occurs in a folded text, so the value still differs from every folded text
-// of the alphabet, as its full folding would. Nullopt when a character of
-// the alphabet is itself changed by folding (the alphabet is not folded text).
-std::optional<std::string> case_fold_for(Dialect dialect, const std::string& x, const std::u32string& alphabet);
+// The (character, folded form) pairs of Unicode full case folding (as the
+// engine's fold_case) needed to compare a value with texts made of the
+// characters of `alphabet`: every character whose folded form lies in the
+// alphabet. Any other character that folding changes is left as it is; such
+// a character never occurs in a folded text, so the value still differs from
+// every folded text of the alphabet, as its full folding would. Nullopt when
+// a character of the alphabet is itself changed by folding (the alphabet is
+// not folded text). Applied with nested REPLACE (replace_each).
+std::optional<std::vector<std::pair<std::string, std::string>>> case_folding_for(const std::u32string& alphabet);
 
 // The number of code points of x (LENGTH counts bytes in MySQL).
 std::string char_length(Dialect dialect, const std::string& x);

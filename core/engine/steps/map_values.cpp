@@ -50,6 +50,7 @@ class MapValues final : public Step {
     const Dialect d = sql.dialect;
     const std::string x = sql.column(column_);
     std::string operand = sql.key(column_);
+    std::string from = sql.from, with;
     if (ignore_case_) {
       std::u32string alphabet;
       for (const auto& entry : lookup_)
@@ -57,9 +58,12 @@ class MapValues final : public Step {
           const char32_t c = utf8::next(entry.first, i);
           if (alphabet.find(c) == std::u32string::npos) alphabet.push_back(c);
         }
-      auto folded = sql::case_fold_for(d, x, alphabet);
-      if (!folded) return usage_error("a folded key holds a character that case folding changes");
-      operand = sql::exact_key(d, *folded, Type::text);
+      auto folding = sql::case_folding_for(alphabet);
+      if (!folding) return usage_error("a folded key holds a character that case folding changes");
+      const ReplacedValues folded = replaced_values(sql, {x}, *folding, "tamis_folded");
+      operand = sql::exact_key(d, folded.results[0], Type::text);
+      from = folded.from;
+      with = folded.with;
     }
     std::string cases = std::string("CASE ") + operand;
     for (const auto& [from, to] : entries_) {
@@ -68,7 +72,7 @@ class MapValues final : public Step {
     }
     cases += std::string("\n         ELSE ") + x + " END";
     SqlStepText out;
-    out.select = sql.select_replacing({{column_, cases}});
+    out.select = with + sql.select_replacing({{column_, cases}}, from);
     return out;
   }
 

@@ -118,20 +118,26 @@ class NormalizeUnicode final : public Step {
     if (strip_accents_) return usage_error("strip_accents is not exported");
     SqlStepText out;
     std::vector<std::pair<size_t, std::string>> replaced;
-    for (const size_t c : columns_) {
-      const std::string x = sql.column(c);
-      switch (sql.dialect) {
-        case Dialect::postgres: replaced.emplace_back(c, std::string("normalize(") + x + std::string(", ") + form() + ")"); break;
-        case Dialect::duckdb: replaced.emplace_back(c, std::string("nfc_normalize(") + x + ")"); break;
-        default: replaced.emplace_back(c, sql::replace_each(sql.dialect, x, latin_compositions()));
-      }
+    std::string from, with;
+    if (sql.dialect == Dialect::postgres || sql.dialect == Dialect::duckdb) {
+      for (const size_t c : columns_)
+        replaced.emplace_back(c, sql.dialect == Dialect::postgres
+                                     ? std::string("normalize(") + sql.column(c) + std::string(", ") + form() + ")"
+                                     : std::string("nfc_normalize(") + sql.column(c) + ")");
+    } else {
+      std::vector<std::string> inputs;
+      for (const size_t c : columns_) inputs.push_back(sql.column(c));
+      const ReplacedValues composed = replaced_values(sql, inputs, latin_compositions(), "tamis_composed");
+      for (size_t k = 0; k < columns_.size(); ++k) replaced.emplace_back(columns_[k], composed.results[k]);
+      from = composed.from;
+      with = composed.with;
     }
     if (sql.dialect == Dialect::duckdb && compatibility_)
       out.approximation = "DuckDB has NFC only, so compatibility characters (ligatures, full-width forms) stay";
     else if (sql.dialect != Dialect::postgres && sql.dialect != Dialect::duckdb)
       out.approximation = "only an ASCII letter followed by one combining mark is composed, into a letter of "
                           "U+00C0-U+017F; other text is left as it is";
-    out.select = sql.select_replacing(replaced);
+    out.select = with + sql.select_replacing(replaced, from);
     return out;
   }
 
