@@ -11,7 +11,17 @@ random recipes over generated messy tables. A recipe a dialect cannot express
 exactly must be refused with the documented message (exit 2, "step N: (op)
 cannot be exported to D" or "can be exported to D only approximately");
 anything exported must match. A recipe whose require step fails in
-`tamis run` (exit 1) must make the script fail on the engine too.
+`tamis run` (exit 1), or that stops it with rejected rows beyond
+input.max_rejects or an expression error (exit 3), must make the script fail
+on the engine too.
+
+The demo recipe runs on the demo file, loaded by each dialect's own load
+statements (--load-script). An exact dialect must match cell for cell; where
+a step is only approximate (normalize_unicode on MariaDB: no normalization in
+SQL) it is exported with --allow-approximate, and only the columns of the
+steps under a WARNING comment may differ: the differing cells are counted and
+printed, and any other difference, row count included, fails the test.
+SQLite refuses the demo at parse_number, as documented (DEMO_REFUSED).
 
 Usage: sql_export.py TAMIS_BINARY [--random N]   (N generated recipes, default 200;
 fewer only while developing: the test registered in CTest uses the default)
