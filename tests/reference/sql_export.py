@@ -140,14 +140,22 @@ def step_cases(rng):
         ('require pattern', {'op': 'require', 'rule': 'pattern', 'columns': some(), 'pattern': '.*'}),
         ('keep_rows', {'op': 'keep_rows', 'where': rng.choice([
             'site IS NOT NULL', "site < district OR note IN ('a', 'Z', 'Oak ')", "NOT (code BETWEEN 'A' AND 'a')",
-            "site <> 'Oak' AND (note IS NULL OR note > 'N')"])}),
+            "site <> 'Oak' AND (note IS NULL OR note > 'N')",
+            # LIKE (% and _ over code points, case-sensitive, ESCAPE), CHAR_LENGTH, IS [NOT] TRUE
+            "site LIKE 'O%'", "site NOT LIKE '%a_'", "note LIKE '%!%%' ESCAPE '!'", "district LIKE '_'",
+            "code LIKE '%[*?]%' OR site LIKE '% %'", "CHAR_LENGTH(site) > 3", "(site = 'Oak') IS NOT TRUE",
+            "(note < 'b') IS FALSE"])}),
         ('drop_rows', {'op': 'drop_rows', 'where': rng.choice([
             "site = 'Oak'", "district NOT IN ('Oak', 'it''s')", "NULLIF(site, 'Oak') IS NULL",
             "CASE site WHEN 'Oak' THEN TRUE WHEN 'A' THEN NULL ELSE FALSE END"])}),
         ('derive_column', {'op': 'derive_column', 'name': 'both', 'expr': rng.choice([
             "site || district", "CASE WHEN site = 'Oak' THEN 'tree' ELSE COALESCE(note, 'none') END",
-            "NULLIF(site, '') || '|' || COALESCE(code, '')"])}),
-        ('derive_column integer', {'op': 'derive_column', 'name': 'n', 'expr': '2 * 3 - 10'}),
+            "NULLIF(site, '') || '|' || COALESCE(code, '')",
+            # SUBSTRING from a literal start of at least 1, TRIM with literal character sets
+            "SUBSTRING(site FROM 2 FOR 3)", "SUBSTRING(district, 1, 2) || '|' || SUBSTRING(note FROM 3)",
+            "TRIM(site)", "TRIM(BOTH '.' FROM site)", "TRIM(LEADING 'aO ' FROM district)", "TRIM(TRAILING '' FROM note)"])}),
+        ('derive_column integer', {'op': 'derive_column', 'name': 'n', 'expr': rng.choice([
+            '2 * 3 - 10', 'ABS(CHAR_LENGTH(site) - 5)', 'ROUND(CHAR_LENGTH(note), 2) * 2'])}),
         ('cast text', {'op': 'cast', 'column': 'code', 'to': 'text'}),
         ('split_column', {'op': 'split_column', 'column': rng.choice(cols), 'separator': rng.choice([' ', ',', 'a', 'Ash ', '\u2003']),
                           'into': ['first', 'second', 'rest'][:rng.randint(2, 3)]}),
