@@ -138,6 +138,7 @@ def main():
                 clean_s, got = timed(lambda: server.run_loading(clean, count))
                 rows = got if isinstance(got, str) else got[0][0]
             results.append((dialect, load_s, clean_s, rows, note))
+            print('%s: load %.1f s, cleaning %.1f s, %s rows (%s)' % (dialect, load_s, clean_s, rows, note), flush=True)
     finally:
         for server in servers.values():
             server.stop()
