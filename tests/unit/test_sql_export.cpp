@@ -64,14 +64,16 @@ TEST_CASE("unit_sql_export: the White_Space class") {
 }
 
 Recipe recipe_with(const std::string& steps) {
-  const std::string text = R"({"tamis_recipe": 1, "input": {"columns": [{"name": "site", "type": "text"},
-      {"name": "note", "type": "text"}]}, "steps": )" + steps + "}";
+  std::string text = R"({"tamis_recipe": 1, "input": {"columns": [{"name": "site", "type": "text"},
+      {"name": "note", "type": "text"}]}, "steps": )";
+  text += steps;
+  text += "}";
   return parse_recipe(text, "test.json").value();
 }
 
 TEST_CASE("unit_sql_export: a step a dialect cannot express stops the export") {
   const Recipe recipe = recipe_with(R"([{"op": "trim", "columns": "*"},
-      {"op": "normalize_unicode", "columns": ["site"], "form": "NFC"}])");
+      {"op": "normalize_unicode", "columns": ["site"], "form": "NFKC"}])");
   SqlExportOptions options;
   options.dialect = Dialect::sqlite;
   auto refused = export_sql(recipe, options);
@@ -83,7 +85,38 @@ TEST_CASE("unit_sql_export: a step a dialect cannot express stops the export") {
   auto script = export_sql(recipe, options);
   REQUIRE(script.ok());
   CHECK(script->find("-- Step 2 (normalize_unicode): ") != std::string::npos);
-  CHECK(script->find("normalize(\"site\", NFC)") != std::string::npos);
+  CHECK(script->find("normalize(\"site\", NFKC)") != std::string::npos);
+}
+
+TEST_CASE("unit_sql_export: case folding for an alphabet replaces exactly the characters that fold into it") {
+  // CaseFolding.txt (Unicode 15): 00DF ß F -> 0073 0073, 1E9E ẞ F -> 0073 0073, 017F ſ C -> 0073,
+  // 0053 S C -> 0073, 212A KELVIN SIGN C -> 006B, 0130 İ F -> 0069 0307.
+  const auto folding = sql::case_folding_for(U"st");
+  REQUIRE(folding.has_value());
+  const std::string folded = sql::replace_each(Dialect::sqlite, "x", *folding);
+  CHECK(folded.find("replace(x, 'S', 's')") != std::string::npos);
+  CHECK(folded.find(", 'ß', 'ss')") != std::string::npos);
+  CHECK(folded.find(", 'ẞ', 'ss')") != std::string::npos);
+  CHECK(folded.find(", 'ſ', 's')") != std::string::npos);
+  CHECK(folded.find(", 'T', 't')") != std::string::npos);
+  CHECK(folded.find("'K'") == std::string::npos);  // folds to k, outside the alphabet
+  CHECK(folded.find("'İ'") == std::string::npos);  // folds to i + U+0307
+  CHECK(!sql::case_folding_for(U"sT").has_value());  // T is not folded text
+}
+
+TEST_CASE("unit_sql_export: on_error reject stops the script, unless the recipe allows rejected rows") {
+  const std::string steps = R"([{"op": "parse_number", "column": "site", "scale": 1, "on_error": "reject"}])";
+  SqlExportOptions options;
+  options.dialect = Dialect::postgres;
+  auto script = export_sql(recipe_with(steps), options);
+  REQUIRE(script.ok());
+  CHECK(script->find("CONSTRAINT \"tamis_clean_step_1_rejects_passes\" CHECK (failing_rows = 0)") != std::string::npos);
+  Recipe allowing = recipe_with(steps);
+  allowing.input.max_rejects = std::string(1, '5');
+  auto refused = export_sql(allowing, options);
+  REQUIRE(!refused.ok());
+  CHECK(refused.error().step == 0);
+  CHECK(refused.error().message.find("(parse_number) cannot be exported to postgres: on_error reject") == 0);
 }
 
 TEST_CASE("unit_sql_export: approximate steps need --allow-approximate and carry a warning") {

@@ -3,14 +3,26 @@
 // an operator whose dialect semantics have not been checked against ours:
 //   text comparisons compare bytes (CAST AS BINARY in MySQL, COLLATE "C" in
 //   PostgreSQL), which in UTF-8 is code point order;
-//   integer + - * only where overflow is an error as in the engine
+//   integer + - * and ABS only where overflow is an error as in the engine
 //   (PostgreSQL, DuckDB, MySQL; SQLite switches to REAL, Spark wraps);
 //   division as exact NUMERIC rounded half away from zero in PostgreSQL,
 //   and SQLite's REAL quotient, which sql_support calls approximate;
-//   LIKE, SUBSTRING, TRIM, CAST, ABS and ROUND are not written yet.
+//   LIKE with a literal pattern as a whole-text regular expression over code
+//   points ('.' with the s flag, so it also matches a line break), or GLOB
+//   in SQLite, which has no regular expressions; both compare exactly and
+//   know no escape character of their own;
+//   CHAR_LENGTH counts code points; SUBSTRING is ISO SQL's in PostgreSQL and
+//   SUBSTR elsewhere (sql_support calls a start below 1 approximate there);
+//   TRIM with literal characters as a set (sql::trim_characters);
+//   IS [NOT] TRUE|FALSE through COALESCE; ROUND of an integer to n >= 0
+//   digits is the integer itself.
+//   CAST is not written yet (each engine reads text its own way).
+#include <optional>
+
 #include "expr/expr.hpp"
 #include "expr/program.hpp"
 #include "sql/sql_text.hpp"
+#include "utf8.hpp"
 
 namespace tamis {
 
@@ -102,12 +114,77 @@ class Renderer {
       case Op::nullif: return std::string("CASE WHEN ") + key(0) + std::string(" = ") + key(1) + std::string(" THEN NULL ELSE ") + a[0] + " END";
       case Op::upper: return std::string("UPPER(") + a[0] + ")";
       case Op::lower: return std::string("LOWER(") + a[0] + ")";
+      case Op::is_true:
+        return std::string(n.negated ? "(NOT COALESCE(" : "(COALESCE(") + a[0] + ", FALSE))";
+      case Op::is_false:
+        return std::string(n.negated ? "(COALESCE(" : "(NOT COALESCE(") + a[0] + ", TRUE))";
+      case Op::like:
+        if (n.pattern) return like(n, a[0]);
+        break;
+      case Op::char_length: return sql::char_length(d_, a[0]);
+      case Op::substring:
+        if (d_ == Dialect::postgres)
+          return std::string("SUBSTRING(") + a[0] + " FROM " + a[1] + (a.size() == 3 ? " FOR " + a[2] : std::string()) + ")";
+        return sql::substring(d_, a[0], a[1], a.size() == 3 ? a[2] : std::string());
+      case Op::trim: {
+        std::u32string characters = U" ";
+        if (n.args.size() == 2) {
+          const Node& chars = p_.node(n.args[1]);
+          if (chars.op != Op::literal || chars.null_literal) break;
+          characters.clear();
+          for (size_t i = 0; i < chars.text.size();) characters.push_back(utf8::next(chars.text, i));
+        }
+        if (characters.empty()) return a[0];
+        const auto side = static_cast<expr::TrimSide>(n.param);
+        return sql::trim_characters(d_, a[0], characters,
+                                    side == expr::TrimSide::both      ? "both"
+                                    : side == expr::TrimSide::leading ? "leading"
+                                                                      : "trailing");
+      }
+      case Op::abs:
+        if (integer_arithmetic() && n.type == VType::integer) return std::string("ABS(") + a[0] + ")";
+        break;
+      case Op::round:
+        if (n.type == VType::integer && p_.node(n.args[0]).type == VType::integer && n.param >= 0) return a[0];
+        break;
       default: break;
     }
     return usage_error(p_.where(id) + std::string("this operator is not written as ") + std::string(dialect_name(d_)) + " SQL yet");
   }
 
  private:
+  std::string like(const Node& n, const std::string& value) const {
+    const std::string& pattern = p_.node(n.args[1]).text;
+    std::optional<char32_t> escape;
+    if (n.args.size() == 3) {
+      size_t i = 0;
+      escape = utf8::next(p_.node(n.args[2]).text, i);
+    }
+    std::string regex, glob;
+    for (size_t i = 0; i < pattern.size();) {
+      char32_t c = utf8::next(pattern, i);
+      if (escape && c == *escape) {
+        c = utf8::next(pattern, i);  // LikePattern::compile checked that one follows
+      } else if (c == U'%') {
+        regex += ".*";
+        glob += '*';
+        continue;
+      } else if (c == U'_') {
+        regex += '.';
+        glob += '?';
+        continue;
+      }
+      regex += sql::regex_class(d_, std::u32string(1, c));
+      std::string one;
+      utf8::append(one, c);
+      glob += c == U'*' || c == U'?' || c == U'[' ? "[" + one + "]" : one;
+    }
+    const std::string test = d_ == Dialect::sqlite
+                                 ? std::string("(") + value + " GLOB " + sql::literal(d_, glob) + ")"
+                                 : sql::regex_matches(d_, value, "(?s)" + sql::regex_whole(d_, regex));
+    return n.negated ? std::string("(NOT ") + test + ")" : test;
+  }
+
   bool integer_arithmetic() const {
     return d_ == Dialect::postgres || d_ == Dialect::duckdb || d_ == Dialect::mysql;
   }

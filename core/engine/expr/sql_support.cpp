@@ -7,7 +7,8 @@
 //   DuckDB and Spark divide decimals into DOUBLE (or with their own scale
 //     rules), so a rounded quotient can differ in the last place;
 //   MySQL has no BOOLEAN text form (1/0) and its TRIM removes a whole string,
-//     not a set of characters;
+//     not a set of characters (a literal set is written as a regular
+//     expression instead);
 //   UPPER/LOWER: each engine has its own case mapping (PostgreSQL's follows
 //     the database locale, SQLite maps ASCII only, none maps ß to SS);
 //   SUBSTRING with a start below 1 or a computed start/length: SQLite, MySQL,
@@ -56,9 +57,7 @@ SqlSupport Expression::sql_support(Dialect dialect) const {
       case Op::trim:
         if (n.args.size() == 2) {
           const Node& chars = p.nodes[n.args[1]];
-          const bool one_literal_character = chars.op == Op::literal && !chars.null_literal &&
-                                             chars.text.size() == 1;
-          if (!one_literal_character) approximate_in({Dialect::mysql});
+          if (chars.op != Op::literal || chars.null_literal) approximate_in({Dialect::mysql});
         }
         break;
       case Op::substring:

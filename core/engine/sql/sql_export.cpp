@@ -175,6 +175,8 @@ Result<std::string> export_sql(const Recipe& recipe, const SqlExportOptions& opt
   context.dialect = d;
   context.input = input;
   context.table_prefix = options.target;
+  context.rejects_allowed = recipe.input.max_rejects && *recipe.input.max_rejects != "0" &&
+                            *recipe.input.max_rejects != "0%";
   const std::string stage = sql::identifier(d, table_name(0));
   script += comment("Staging copy of the raw table.");
   script += std::string("DROP TABLE IF EXISTS ") + stage + ";\n";

@@ -1,8 +1,11 @@
 #include "sql/sql_text.hpp"
 
+#include <unicode/uchar.h>
+
 #include <algorithm>
 #include <cstdio>
 
+#include "steps/text_step_support.hpp"
 #include "utf8.hpp"
 
 namespace tamis::sql {
@@ -157,6 +160,14 @@ std::string regex_class(Dialect dialect, const std::u32string& characters) {
 
 bool has_regex(Dialect dialect) { return dialect != Dialect::sqlite; }
 
+std::string regex_whole(Dialect dialect, const std::string& body) {
+  const bool dollar_ends = dialect == Dialect::postgres || dialect == Dialect::duckdb;
+  std::string out = "^(?:";
+  out += body;
+  out += dollar_ends ? ")$" : ")\\z";
+  return out;
+}
+
 std::string regex_matches(Dialect dialect, const std::string& x, const std::string& pattern) {
   const std::string p = literal(dialect, pattern);
   switch (dialect) {
@@ -227,6 +238,134 @@ std::string exact_key(Dialect dialect, const std::string& x, Type type) {
   if (dialect == Dialect::mysql) return std::string("CAST(") + x + " AS BINARY)";
   if (dialect == Dialect::postgres) return std::string("(") + x + " COLLATE \"C\")";
   return x;
+}
+
+std::string replace_each(Dialect dialect, const std::string& x,
+                         const std::vector<std::pair<std::string, std::string>>& pairs) {
+  std::string out = x;
+  for (const auto& [from, to] : pairs)
+    out = std::string(dialect == Dialect::mysql ? "REPLACE(" : "replace(") + out + ", " + literal(dialect, from) +
+          ", " + literal(dialect, to) + ")";
+  return out;
+}
+
+namespace {
+
+// Every code point that full case folding changes, with its folded form
+// (CaseFolding.txt statuses C and F, through ICU like fold_case).
+const std::vector<std::pair<char32_t, std::u32string>>& case_foldings() {
+  static const std::vector<std::pair<char32_t, std::u32string>> foldings = [] {
+    std::vector<std::pair<char32_t, std::u32string>> out;
+    for (char32_t c = 0; c <= 0x10FFFF; ++c) {
+      if (!u_hasBinaryProperty(static_cast<UChar32>(c), UCHAR_CHANGES_WHEN_CASEFOLDED)) continue;
+      std::string one;
+      utf8::append(one, c);
+      const std::string folded = fold_case(one);
+      std::u32string code_points;
+      for (size_t i = 0; i < folded.size();) code_points.push_back(utf8::next(folded, i));
+      if (code_points != std::u32string(1, c)) out.emplace_back(c, std::move(code_points));
+    }
+    return out;
+  }();
+  return foldings;
+}
+
+}  // namespace
+
+std::optional<std::vector<std::pair<std::string, std::string>>> case_folding_for(const std::u32string& alphabet) {
+  const auto& foldings = case_foldings();
+  auto changed_by_folding = [&](char32_t c) {
+    return std::binary_search(foldings.begin(), foldings.end(), std::make_pair(c, std::u32string()),
+                              [](const auto& a, const auto& b) { return a.first < b.first; });
+  };
+  for (const char32_t c : alphabet)
+    if (changed_by_folding(c)) return std::nullopt;
+  std::vector<std::pair<std::string, std::string>> pairs;
+  for (const auto& [c, folded] : foldings) {
+    if (!std::all_of(folded.begin(), folded.end(), [&](char32_t f) { return alphabet.find(f) != alphabet.npos; }))
+      continue;
+    std::string from, to;
+    utf8::append(from, c);
+    for (const char32_t f : folded) utf8::append(to, f);
+    pairs.emplace_back(std::move(from), std::move(to));
+  }
+  return pairs;
+}
+
+std::string char_length(Dialect dialect, const std::string& x) {
+  switch (dialect) {
+    case Dialect::postgres:
+    case Dialect::mysql: return std::string("CHAR_LENGTH(") + x + ")";
+    case Dialect::sqlite:
+    case Dialect::duckdb:
+    case Dialect::spark: return std::string("length(") + x + ")";
+  }
+  return {};
+}
+
+std::string position(Dialect dialect, const std::string& needle, const std::string& x) {
+  switch (dialect) {
+    case Dialect::postgres: return std::string("strpos(") + x + ", " + needle + ")";
+    case Dialect::mysql: return std::string("LOCATE(") + needle + ", " + x + ")";
+    case Dialect::sqlite:
+    case Dialect::duckdb:
+    case Dialect::spark: return std::string("instr(") + x + ", " + needle + ")";
+  }
+  return {};
+}
+
+std::string substring(Dialect dialect, const std::string& x, const std::string& start, const std::string& length) {
+  const char* name = dialect == Dialect::mysql ? "SUBSTRING(" : "substr(";
+  return std::string(name) + x + ", " + start + (length.empty() ? std::string() : ", " + length) + ")";
+}
+
+std::string text_type(Dialect dialect) {
+  switch (dialect) {
+    case Dialect::mysql: return "CHAR";
+    case Dialect::spark: return "STRING";
+    case Dialect::duckdb: return "VARCHAR";
+    case Dialect::postgres:
+    case Dialect::sqlite: return "TEXT";
+  }
+  return {};
+}
+
+std::string as_text(Dialect dialect, const std::string& x) {
+  return std::string("CAST(") + x + " AS " + text_type(dialect) + ")";
+}
+
+std::string scaled_number(Dialect dialect, const std::string& plain, int scale, bool hundredths) {
+  const int shift = hundredths ? 2 : 0;
+  // Beyond these integer digits (leading zeros aside) no value fits 64 bits
+  // at the scale; only the first dropped fraction digit decides the rounding.
+  const int integer_digits = 19 - scale + shift;
+  const int kept_fraction = scale + 1 + shift;
+  const std::string decimal_type = dialect == Dialect::postgres ? "NUMERIC" : "DECIMAL";
+  const std::string fits =
+      regex_matches(dialect, plain,
+                    regex_whole(dialect, std::string("[+-]?0*[0-9]{0,") + std::to_string(integer_digits) + "}(?:\\.[0-9]*)?"));
+  const std::string kept =
+      regex_first_match(dialect, plain, std::string("^[+-]?[0-9]*(?:\\.[0-9]{0,") + std::to_string(kept_fraction) + "})?");
+  std::string value = std::string("CAST(") + kept + " AS " + decimal_type + "(" +
+                      std::to_string(integer_digits + kept_fraction) + ", " + std::to_string(kept_fraction) + "))";
+  if (hundredths) value = std::string("(") + value + " * 0.01)";
+  const std::string rounded = std::string("ROUND(") + value + ", " + std::to_string(scale) + ")";
+  // -2^63 and 2^63 - 1 at the scale.
+  auto bound = [&](std::string_view magnitude, bool negative) {
+    const size_t whole = magnitude.size() - static_cast<size_t>(scale);
+    std::string out = negative ? "-" : "";
+    out.append(magnitude.substr(0, whole));
+    if (scale > 0) {
+      out += '.';
+      out.append(magnitude.substr(whole));
+    }
+    return out;
+  };
+  const std::string type = scale == 0 ? (dialect == Dialect::mysql ? std::string("SIGNED") : std::string("BIGINT"))
+                                      : decimal_type + "(19, " + std::to_string(scale) + ")";
+  return std::string("CASE WHEN ") + fits + "\n              THEN CASE WHEN " + rounded + " BETWEEN " +
+         bound("9223372036854775808", true) + " AND " + bound("9223372036854775807", false) + "\n                        THEN CAST(" +
+         rounded + " AS " + type + ") END END";
 }
 
 std::string same_or_both_null(Dialect dialect, const std::string& a, const std::string& b) {

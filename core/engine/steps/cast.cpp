@@ -87,25 +87,45 @@ class Cast final : public Step {
     return Ok{};
   }
 
-  // Only text and integers to text are exported yet (an integer's text is
-  // canonical in every dialect); converting text under these exact rules
-  // needs shape tests no SQL has been checked against a database for. (No
-  // SQL script writes a rejects file.)
-  SqlSupport sql_support(Dialect) const override {
+  // To text: an integer's text is canonical in every dialect. From text,
+  // where regular expressions check the shapes CAST reads (read_scaled: ASCII
+  // spaces around, a sign, digits; a decimal also a fraction): integer and
+  // decimal through sql::scaled_number (decimal is approximate, as exponent
+  // notation such as 1.5E3 is not read there); boolean by the words TRUE,
+  // FALSE and UNKNOWN in any ASCII case, in the dialects with a BOOLEAN type.
+  // Not yet: text to date, and decimal to text.
+  SqlSupport sql_support(Dialect dialect) const override {
     const Type from = input_[column_].type;
-    return to_ == Type::text && (from == Type::text || from == Type::integer) ? SqlSupport::exact
-                                                                              : SqlSupport::unsupported;
+    if (to_ == Type::text) return from == Type::text || from == Type::integer ? SqlSupport::exact : SqlSupport::unsupported;
+    if (from != Type::text || dialect == Dialect::sqlite) return SqlSupport::unsupported;
+    switch (to_) {
+      case Type::integer: return SqlSupport::exact;
+      case Type::decimal: return SqlSupport::approximate;
+      case Type::boolean: return dialect == Dialect::mysql ? SqlSupport::unsupported : SqlSupport::exact;
+      default: return SqlSupport::unsupported;
+    }
   }
 
   Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    const Dialect d = sql.dialect;
+    const std::string x = sql.column(column_);
     SqlStepText out;
-    if (input_[column_].type == Type::text) return out;
-    const char* text_type = sql.dialect == Dialect::mysql    ? "CHAR"
-                            : sql.dialect == Dialect::spark  ? "STRING"
-                            : sql.dialect == Dialect::duckdb ? "VARCHAR"
-                                                             : "TEXT";
-    out.select = sql.select_replacing({{column_, std::string("CAST(") + sql.column(column_) + std::string(" AS ") + text_type + ")"}});
-    return out;
+    if (to_ == Type::text) {
+      if (input_[column_].type == Type::text) return out;
+      out.select = sql.select_replacing({{column_, sql::as_text(d, x)}});
+      return out;
+    }
+    const std::string trimmed = sql::trim_characters(d, x, U" ", "both");
+    if (to_ == Type::boolean) return boolean_sql(sql, trimmed);
+    const std::string shape = to_ == Type::integer ? std::string("[+-]?[0-9]+")
+                                                   : std::string("[+-]?(?:[0-9]+(?:\\.[0-9]*)?|\\.[0-9]+)");
+    const std::string converted = std::string("CASE WHEN ") + sql::regex_matches(d, trimmed, sql::regex_whole(d, shape)) +
+                                  "\n         THEN " + sql::scaled_number(d, trimmed, scale_, false) + " END";
+    auto result = conversion_sql(sql, column_, converted, [&](const std::string& v) { return sql::as_text(d, v); },
+                                 on_error_, op());
+    if (result && to_ == Type::decimal)
+      result->approximation = "exponent notation (1.5E3) is read as not a number";
+    return result;
   }
 
   nlohmann::ordered_json parameters() const override {
@@ -150,6 +170,45 @@ class Cast final : public Step {
                                  }
                                  return Converted::failed;
                                });
+  }
+
+  // UNKNOWN is NULL, not a failure: on_error keep writes NULL for it and
+  // reject keeps its row.
+  Result<SqlStepText> boolean_sql(const SqlContext& sql, const std::string& trimmed) const {
+    const Dialect d = sql.dialect;
+    auto word = [&](std::string_view w) {
+      std::string pattern;
+      for (const char c : w) {
+        pattern += '[';
+        pattern += c;
+        pattern += static_cast<char>(c - 'A' + 'a');
+        pattern += ']';
+      }
+      return sql::regex_matches(d, trimmed, sql::regex_whole(d, pattern));
+    };
+    const std::string x = sql.column(column_);
+    const std::string is_true = word("TRUE"), is_false = word("FALSE"), is_unknown = word("UNKNOWN");
+    SqlStepText out;
+    switch (on_error_) {
+      case OnError::keep:
+        out.select = sql.select_replacing({{column_, std::string("CASE WHEN ") + is_true + " THEN 'true' WHEN " + is_false +
+                                                         " THEN 'false' WHEN " + is_unknown + " THEN NULL ELSE " + x + " END"}});
+        return out;
+      case OnError::reject:
+        if (sql.rejects_allowed)
+          return usage_error("on_error reject with rejected rows allowed (input.max_rejects) needs a rejects file, "
+                             "which a SQL script cannot write");
+        out.statements = stop_unless_zero(
+            sql, "rejects",
+            std::string("SELECT COUNT(*) FROM ") + sql.from + " WHERE " + x + " IS NOT NULL AND NOT (" + is_true + " OR " +
+                is_false + " OR " + is_unknown + ")",
+            std::string("step ") + std::to_string(sql.step_number) + " (cast) rejected rows, and input.max_rejects allows none");
+        break;
+      case OnError::null: break;
+    }
+    out.select = sql.select_replacing(
+        {{column_, std::string("CASE WHEN ") + is_true + " THEN TRUE WHEN " + is_false + " THEN FALSE END"}});
+    return out;
   }
 
   ColumnPtr canonical_text(const Column& column) const {

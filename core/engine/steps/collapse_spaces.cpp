@@ -70,25 +70,27 @@ class CollapseSpaces final : public Step {
   }
 
   // regexp_replace over the inner part (between the leading and trailing
-  // runs) with the White_Space characters written out as a class; SQLite
-  // has no regexp_replace.
-  SqlSupport sql_support(Dialect dialect) const override {
-    switch (dialect) {
-      case Dialect::postgres:
-      case Dialect::duckdb:
-      case Dialect::spark:
-      case Dialect::mysql: return SqlSupport::exact;
-      case Dialect::sqlite: return SqlSupport::unsupported;
-    }
-    return SqlSupport::unsupported;
-  }
+  // runs) with the White_Space characters written out as a class. SQLite has
+  // no regular expressions: there the inner part is TRIM with the White_Space
+  // characters, each of them becomes a space by nested REPLACE, and 31
+  // nested REPLACE(.., '  ', ' ') halve every run of spaces 31 times, which
+  // leaves one space of any run shorter than 2^31 characters, longer than
+  // SQLite's largest text (SQLITE_MAX_LENGTH, at most 2^31 - 1 bytes). The
+  // REPLACE calls are spread over nested SELECTs, each at most 24 deep, as
+  // SQLite's parser stack holds about 33 nested calls.
+  SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
 
   Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    SqlStepText out;
+    if (sql.dialect == Dialect::sqlite) {
+      out.select = sqlite_select(sql);
+      return out;
+    }
     const Dialect d = sql.dialect;
-    const std::string space = sql::regex_class(d, sql::white_space_characters());
     std::vector<std::pair<size_t, std::string>> replaced;
     for (const size_t c : columns_) {
       const std::string x = sql.column(c);
+      const std::string space = sql::regex_class(d, sql::white_space_characters());
       const std::string inner = sql::regex_replace_all(d, x, std::string("^") + space + std::string("+|") + space + "+$", "");
       replaced.emplace_back(
           c, std::string("CASE WHEN ") + inner + std::string(" = '' THEN ") + x + "\n            ELSE " +
@@ -97,7 +99,6 @@ class CollapseSpaces final : public Step {
                                  sql::regex_first_match(d, x, space + "+$")}) +
                  " END");
     }
-    SqlStepText out;
     out.select = sql.select_replacing(replaced);
     return out;
   }
@@ -109,6 +110,38 @@ class CollapseSpaces final : public Step {
   }
 
  private:
+  std::string sqlite_select(const SqlContext& sql) const {
+    const Dialect d = Dialect::sqlite;
+    const std::u32string& white = sql::white_space_characters();
+    std::vector<std::pair<std::string, std::string>> to_space;
+    for (const char32_t w : white) {
+      if (w == U' ') continue;
+      std::string one;
+      utf8::append(one, w);
+      to_space.emplace_back(std::move(one), " ");
+    }
+    const std::vector<std::pair<std::string, std::string>> halve_16(16, {"  ", " "}), halve_15(15, {"  ", " "});
+    std::string inner, spaced, halved;
+    std::vector<std::pair<size_t, std::string>> replaced;
+    for (const size_t c : columns_) {
+      const std::string x = sql.column(c);
+      const std::string k = std::to_string(c);
+      inner += std::string(", ") + sql::trim_characters(d, x, white, "both") + " AS tamis_inner_" + k;
+      spaced += std::string(", ") + sql::replace_each(d, "tamis_inner_" + k, to_space) + " AS tamis_spaced_" + k;
+      halved += std::string(", ") + sql::replace_each(d, "tamis_spaced_" + k, halve_16) + " AS tamis_halved_" + k;
+      const std::string leading = sql::substring(d, x, "1", std::string("length(") + x + ") - length(" +
+                                                             sql::trim_characters(d, x, white, "leading") + ")");
+      const std::string trailing =
+          sql::substring(d, x, std::string("length(") + sql::trim_characters(d, x, white, "trailing") + ") + 1");
+      replaced.emplace_back(c, std::string("CASE WHEN tamis_inner_") + k + " = '' THEN " + x + "\n            ELSE " +
+                                   sql::concat(d, {leading, sql::replace_each(d, "tamis_halved_" + k, halve_15), trailing}) +
+                                   " END");
+    }
+    const std::string from = std::string("(SELECT *") + halved + "\n      FROM (SELECT *" + spaced + "\n            FROM (SELECT *" +
+                             inner + "\n                  FROM " + sql.from + ") AS tamis_inner) AS tamis_spaced) AS tamis_halved";
+    return sql.select_replacing(replaced, from);
+  }
+
   std::vector<size_t> columns_;
   Schema input_;
 };

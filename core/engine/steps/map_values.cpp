@@ -40,26 +40,39 @@ class MapValues final : public Step {
     });
   }
 
-  // CASE x WHEN 'old' THEN 'new' ... under a binary collation is exact; SQL
-  // has no full case folding, and LOWER() on both sides only approximates it.
-  SqlSupport sql_support(Dialect) const override {
-    return ignore_case_ ? SqlSupport::approximate : SqlSupport::exact;
-  }
+  // CASE x WHEN 'old' THEN 'new' ... compared as bytes is exact. With
+  // ignore_case the value is case-folded by nested REPLACE calls for the
+  // characters that fold into the keys' characters (sql::case_fold_for),
+  // then compared with the folded keys.
+  SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
 
   Result<SqlStepText> to_sql(const SqlContext& sql) const override {
     const Dialect d = sql.dialect;
     const std::string x = sql.column(column_);
-    std::string cases = "CASE";
+    std::string operand = sql.key(column_);
+    std::string from = sql.from, with;
+    if (ignore_case_) {
+      std::u32string alphabet;
+      for (const auto& entry : lookup_)
+        for (size_t i = 0; i < entry.first.size();) {
+          const char32_t c = utf8::next(entry.first, i);
+          if (alphabet.find(c) == std::u32string::npos) alphabet.push_back(c);
+        }
+      auto folding = sql::case_folding_for(alphabet);
+      if (!folding) return usage_error("a folded key holds a character that case folding changes");
+      const ReplacedValues folded = replaced_values(sql, {x}, *folding, "tamis_folded");
+      operand = sql::exact_key(d, folded.results[0], Type::text);
+      from = folded.from;
+      with = folded.with;
+    }
+    std::string cases = std::string("CASE ") + operand;
     for (const auto& [from, to] : entries_) {
-      const std::string test = ignore_case_ ? sql::exact_key(d, std::string("LOWER(") + x + ")", Type::text) + " = " +
-                                                  sql::exact_key(d, std::string("LOWER(") + sql.text(from) + ")", Type::text)
-                                            : sql.key(column_) + std::string(" = ") + sql::exact_key(d, sql.text(from), Type::text);
-      cases += std::string("\n         WHEN ") + test + std::string(" THEN ") + sql.text(to);
+      const std::string key = ignore_case_ ? fold_case(from) : from;
+      cases += std::string("\n         WHEN ") + sql::exact_key(d, sql.text(key), Type::text) + std::string(" THEN ") + sql.text(to);
     }
     cases += std::string("\n         ELSE ") + x + " END";
     SqlStepText out;
-    out.select = sql.select_replacing({{column_, cases}});
-    if (ignore_case_) out.approximation = "LOWER on both sides stands in for Unicode case folding";
+    out.select = with + sql.select_replacing({{column_, cases}}, from);
     return out;
   }
 

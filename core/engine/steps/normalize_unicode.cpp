@@ -13,6 +13,31 @@ namespace tamis {
 
 namespace {
 
+// Each ASCII letter followed by a combining mark of U+0300-U+036F that NFC
+// composes into one letter of U+00C0-U+017F, with that letter.
+const std::vector<std::pair<std::string, std::string>>& latin_compositions() {
+  static const std::vector<std::pair<std::string, std::string>> pairs = [] {
+    std::vector<std::pair<std::string, std::string>> out;
+    UErrorCode status = U_ZERO_ERROR;
+    const icu::Normalizer2* nfc = icu::Normalizer2::getNFCInstance(status);
+    if (U_FAILURE(status)) return out;
+    for (char32_t base = U'A'; base <= U'z'; ++base) {
+      if (base > U'Z' && base < U'a') continue;
+      for (char32_t mark = 0x300; mark <= 0x36F; ++mark) {
+        const UChar32 composed = nfc->composePair(static_cast<UChar32>(base), static_cast<UChar32>(mark));
+        if (composed < 0xC0 || composed > 0x17F) continue;
+        std::string from, to;
+        utf8::append(from, base);
+        utf8::append(from, mark);
+        utf8::append(to, static_cast<char32_t>(composed));
+        out.emplace_back(std::move(from), std::move(to));
+      }
+    }
+    return out;
+  }();
+  return pairs;
+}
+
 class NormalizeUnicode final : public Step {
  public:
   // Normalizer2 instances are ICU singletons, immutable and thread-safe.
@@ -72,28 +97,47 @@ class NormalizeUnicode final : public Step {
 
   // PostgreSQL's normalize(x, NFC|NFKC) and DuckDB's nfc_normalize (NFC
   // only) implement the same standard; no dialect strips exactly the Mn
-  // marks (DuckDB's strip_accents uses other mark classes).
+  // marks (DuckDB's strip_accents uses other mark classes). MySQL, SQLite
+  // and Spark have no normalization: their nearest form composes, by nested
+  // REPLACE, an ASCII letter followed by one combining mark of U+0300-U+036F
+  // where NFC makes one letter of Latin-1 or Latin Extended-A of them
+  // (Rivie + U+0300 + re -> Rivière); DuckDB's nearest NFKC is its NFC.
   SqlSupport sql_support(Dialect dialect) const override {
+    if (strip_accents_) return SqlSupport::unsupported;
     switch (dialect) {
-      case Dialect::postgres: return strip_accents_ ? SqlSupport::unsupported : SqlSupport::exact;
-      case Dialect::duckdb:
-        return compatibility_ || strip_accents_ ? SqlSupport::unsupported : SqlSupport::exact;
+      case Dialect::postgres: return SqlSupport::exact;
+      case Dialect::duckdb: return compatibility_ ? SqlSupport::approximate : SqlSupport::exact;
       case Dialect::mysql:
       case Dialect::sqlite:
-      case Dialect::spark: return SqlSupport::unsupported;
+      case Dialect::spark: return compatibility_ ? SqlSupport::unsupported : SqlSupport::approximate;
     }
     return SqlSupport::unsupported;
   }
 
   Result<SqlStepText> to_sql(const SqlContext& sql) const override {
     if (strip_accents_) return usage_error("strip_accents is not exported");
-    std::vector<std::pair<size_t, std::string>> replaced;
-    for (const size_t c : columns_)
-      replaced.emplace_back(c, sql.dialect == Dialect::postgres
-                                   ? std::string("normalize(") + sql.column(c) + std::string(", ") + form() + ")"
-                                   : std::string("nfc_normalize(") + sql.column(c) + ")");
     SqlStepText out;
-    out.select = sql.select_replacing(replaced);
+    std::vector<std::pair<size_t, std::string>> replaced;
+    std::string from, with;
+    if (sql.dialect == Dialect::postgres || sql.dialect == Dialect::duckdb) {
+      for (const size_t c : columns_)
+        replaced.emplace_back(c, sql.dialect == Dialect::postgres
+                                     ? std::string("normalize(") + sql.column(c) + std::string(", ") + form() + ")"
+                                     : std::string("nfc_normalize(") + sql.column(c) + ")");
+    } else {
+      std::vector<std::string> inputs;
+      for (const size_t c : columns_) inputs.push_back(sql.column(c));
+      const ReplacedValues composed = replaced_values(sql, inputs, latin_compositions(), "tamis_composed");
+      for (size_t k = 0; k < columns_.size(); ++k) replaced.emplace_back(columns_[k], composed.results[k]);
+      from = composed.from;
+      with = composed.with;
+    }
+    if (sql.dialect == Dialect::duckdb && compatibility_)
+      out.approximation = "DuckDB has NFC only, so compatibility characters (ligatures, full-width forms) stay";
+    else if (sql.dialect != Dialect::postgres && sql.dialect != Dialect::duckdb)
+      out.approximation = "only an ASCII letter followed by one combining mark is composed, into a letter of "
+                          "U+00C0-U+017F; other text is left as it is";
+    out.select = with + sql.select_replacing(replaced, from);
     return out;
   }
 

@@ -163,17 +163,14 @@ class ParseDate final : public Step {
     return Ok{};
   }
 
-  // Written for on_error null in PostgreSQL, DuckDB and SQLite, for formats
-  // of %Y %y %m %d %% and literal characters where each %m and %d ends at a
-  // literal or the end: every split of the one-or-two-digit fields is a
-  // fixed layout, tested by length and a digit pattern (GLOB in SQLite)
-  // before the fields are read, then by the calendar. The engine's year 0000
-  // (1 BC) is an error in PostgreSQL and DuckDB, text in SQLite. MySQL's DATE
-  // range and Spark are not checked; a rejects file no SQL script can write.
-  SqlSupport sql_support(Dialect dialect) const override {
-    if (on_error_ != OnError::null) return SqlSupport::unsupported;
-    if (dialect != Dialect::postgres && dialect != Dialect::duckdb && dialect != Dialect::sqlite)
-      return SqlSupport::unsupported;
+  // Written for formats of %Y %y %m %d %% and literal characters where each
+  // %m and %d ends at a literal or the end: every split of the
+  // one-or-two-digit fields is a fixed layout, tested by its length in code
+  // points and a digit pattern (GLOB in SQLite) before the fields are read,
+  // then by the calendar. The engine's year 0000 (1 BC) is an error in
+  // PostgreSQL, DuckDB and Spark, text in SQLite, and MySQL's DATE holds it.
+  // SQLite has no DATE type: the date is its ISO 8601 text.
+  SqlSupport sql_support(Dialect) const override {
     for (const DateFormat& f : formats_)
       if (!sql_layouts(f.pattern())) return SqlSupport::unsupported;
     return SqlSupport::exact;
@@ -182,7 +179,6 @@ class ParseDate final : public Step {
   Result<SqlStepText> to_sql(const SqlContext& sql) const override {
     const Dialect d = sql.dialect;
     const std::string x = sql.column(column_);
-    const char* length = d == Dialect::postgres ? "char_length(" : "length(";
     std::string cases = "CASE";
     for (const DateFormat& f : formats_) {
       auto layouts = sql_layouts(f.pattern());
@@ -199,12 +195,12 @@ class ParseDate final : public Step {
             shape += sql::regex_class(d, std::u32string(1, c));
           }
         }
-        std::string test = std::string(length) + x + std::string(") = ") + std::to_string(layout.shape.size()) + " AND ";
+        std::string test = sql::char_length(d, x) + std::string(" = ") + std::to_string(layout.shape.size()) + " AND ";
         if (d == Dialect::sqlite) test += x + std::string(" GLOB ") + sql.text(shape);
-        else test += sql::regex_matches(d, x, std::string("^") + shape + "$");
+        else test += sql::regex_matches(d, x, sql::regex_whole(d, shape));
+        const char* integer = d == Dialect::mysql ? " AS SIGNED)" : " AS INTEGER)";
         auto field = [&](const Field& at) {
-          return std::string("CAST(substr(") + x + std::string(", ") + std::to_string(at.position) + ", " +
-                 std::to_string(at.width) + ") AS INTEGER)";
+          return std::string("CAST(") + sql::substring(d, x, std::to_string(at.position), std::to_string(at.width)) + integer;
         };
         const std::string y = layout.two_digit_year ? std::string("(CASE WHEN ") + field(layout.year) + " >= 69 THEN 1900 ELSE 2000 END + " +
                                                           field(layout.year) + ")"
@@ -220,16 +216,23 @@ class ParseDate final : public Step {
             date = std::string("CASE WHEN ") + y + std::string(" = 0 THEN error('parse_date: year 0000 has no DuckDB date') ELSE make_date(") + y +
                    std::string(", ") + m + std::string(", ") + day + ") END";
             break;
-          default: date = std::string("make_date(") + y + std::string(", ") + m + std::string(", ") + day + ")";
+          case Dialect::spark:
+            date = std::string("CASE WHEN ") + y + std::string(" = 0 THEN raise_error('parse_date: year 0000 has no Spark date') ELSE make_date(") +
+                   y + std::string(", ") + m + std::string(", ") + day + ") END";
+            break;
+          case Dialect::mysql:
+            date = std::string("CAST(CONCAT(LPAD(") + y + std::string(", 4, '0'), '-', ") + m + std::string(", '-', ") + day + ") AS DATE)";
+            break;
+          case Dialect::postgres: date = std::string("make_date(") + y + std::string(", ") + m + std::string(", ") + day + ")"; break;
         }
         // The fields are read only once the layout matched (CASE is lazy).
         cases += std::string("\n         WHEN CASE WHEN ") + test + std::string(" THEN ") + valid + std::string(" ELSE FALSE END\n           THEN ") + date;
       }
     }
     cases += "\n         ELSE NULL END";
-    SqlStepText out;
-    out.select = sql.select_replacing({{column_, cases}});
-    return out;
+    return conversion_sql(sql, column_, cases,
+                          [&](const std::string& v) { return d == Dialect::sqlite ? v : sql::as_text(d, v); }, on_error_,
+                          op());
   }
 
   nlohmann::ordered_json parameters() const override {

@@ -3,6 +3,7 @@
 #include <algorithm>
 
 #include "expr/numeric.hpp"
+#include "sql/sql_step.hpp"
 #include "steps/typed_support.hpp"
 #include "utf8.hpp"
 
@@ -172,10 +173,49 @@ class ParseNumber final : public Step {
     return Ok{};
   }
 
-  // Not exported yet: no SQL for these number forms has been checked
-  // against a database. (A rejects file is something no SQL script can
-  // write, and a scale that depends on the data cannot be declared ahead.)
-  SqlSupport sql_support(Dialect) const override { return SqlSupport::unsupported; }
+  // The rules of normalize() as regular expressions: at most one '%', the
+  // strip characters and the '%' removed by nested REPLACE, the shape (sign,
+  // digits grouped 1-3 then 3 by 3, or not grouped, a decimal mark and
+  // digits, at least one digit) checked whole, group marks dropped and the
+  // decimal mark made '.', then sql::scaled_number. SQLite has no regular
+  // expressions; a scale left to the data cannot be declared ahead.
+  SqlSupport sql_support(Dialect dialect) const override {
+    return scale_ && dialect != Dialect::sqlite ? SqlSupport::exact : SqlSupport::unsupported;
+  }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    if (!scale_) return usage_error("without a scale the number of decimals depends on the data");
+    const Dialect d = sql.dialect;
+    const std::string x = sql.column(column_);
+    std::vector<std::pair<std::string, std::string>> removed;
+    for (const char32_t c : form_.strip) {
+      std::string one;
+      utf8::append(one, c);
+      removed.emplace_back(std::move(one), "");
+    }
+    if (form_.percent) removed.emplace_back("%", "");
+    const std::string bare = sql::replace_each(d, x, removed);
+    const std::string digit = "[0-9]";
+    const std::string mark = sql::regex_class(d, std::u32string(1, static_cast<char32_t>(form_.decimal_mark)));
+    const std::string integer =
+        form_.group_mark ? std::string("(?:[0-9]{1,3}(?:") + sql::regex_class(d, std::u32string(1, static_cast<char32_t>(form_.group_mark))) +
+                               "[0-9]{3})+|[0-9]+)"
+                         : std::string("[0-9]+");
+    std::string shape = sql::regex_matches(
+        d, bare, sql::regex_whole(d, std::string("[+-]?(?:") + integer + std::string("(?:") + mark + std::string("[0-9]*)?|") + mark + "[0-9]+)"));
+    if (form_.percent)
+      shape = sql::char_length(d, x) + std::string(" - ") + sql::char_length(d, sql::replace_each(d, x, {{"%", ""}})) + " <= 1 AND " + shape;
+    std::vector<std::pair<std::string, std::string>> to_plain;
+    if (form_.group_mark) to_plain.emplace_back(std::string(1, form_.group_mark), "");
+    if (form_.decimal_mark != '.') to_plain.emplace_back(std::string(1, form_.decimal_mark), ".");
+    const std::string plain = sql::replace_each(d, bare, to_plain);
+    std::string value = sql::scaled_number(d, plain, *scale_, false);
+    if (form_.percent)  // only a value with its % sign is a percentage
+      value = std::string("CASE WHEN ") + sql::position(d, "'%'", x) + " > 0\n         THEN " +
+              sql::scaled_number(d, plain, *scale_, true) + "\n         ELSE " + value + " END";
+    return conversion_sql(sql, column_, std::string("CASE WHEN ") + shape + "\n         THEN " + value + " END",
+                          [&](const std::string& v) { return sql::as_text(d, v); }, on_error_, op());
+  }
 
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;

@@ -1,5 +1,6 @@
 #include "steps/split_column.hpp"
 
+#include "sql/sql_step.hpp"
 #include "steps/text_step_support.hpp"
 #include "utf8.hpp"
 
@@ -74,11 +75,39 @@ class SplitColumn final : public Step {
     return out;
   }
 
-  // The k-th part is a SUBSTR between the positions of the (k-1)-th and k-th
-  // separator (nested INSTR/POSITION), NULL when there are fewer: plain SQL
-  // in every dialect.
-  // Not exported yet: no SQL for the split has been checked against a database.
-  SqlSupport sql_support(Dialect) const override { return SqlSupport::unsupported; }
+  // Each part is a SUBSTR of the rest after the separators before it,
+  // found by position (strpos, LOCATE, instr: code points, exact bytes under
+  // the script's binary comparison); the rest after a missing separator is
+  // NULL, and so are the parts after it.
+  SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
+
+  Result<SqlStepText> to_sql(const SqlContext& sql) const override {
+    const Dialect d = sql.dialect;
+    const std::string separator = sql.text(separator_);
+    const std::string separator_length = std::to_string(utf8::code_point_count(separator_));
+    std::string rest = sql.column(column_);
+    std::vector<std::string> parts;
+    for (size_t p = 0; p < into_.size(); ++p) {
+      if (p + 1 == into_.size()) {
+        parts.push_back(rest);
+        break;
+      }
+      const std::string at = sql::position(d, separator, rest);
+      parts.push_back(std::string("CASE WHEN ") + at + " > 0 THEN " + sql::substring(d, rest, "1", at + " - 1") +
+                      " ELSE " + rest + " END");
+      rest = std::string("CASE WHEN ") + at + " > 0 THEN " + sql::substring(d, rest, at + " + " + separator_length) + " END";
+    }
+    std::string select = "SELECT";
+    for (size_t c = 0; c < input_.size(); ++c) {
+      select += c ? ",\n       " : " ";
+      select += sql.column(c);
+      if (c != column_) continue;
+      for (size_t p = 0; p < into_.size(); ++p) select += ",\n       " + parts[p] + " AS " + sql.name(into_[p]);
+    }
+    SqlStepText out;
+    out.select = select + ",\n       " + sql.line() + "\nFROM " + sql.from;
+    return out;
+  }
 
   nlohmann::ordered_json parameters() const override {
     nlohmann::ordered_json p;

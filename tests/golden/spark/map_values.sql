@@ -15,9 +15,9 @@ FROM `tamis_raw`;
 DROP TABLE IF EXISTS `tamis_clean_step_1`;
 CREATE TABLE `tamis_clean_step_1` AS
 SELECT `site`,
-       CASE
-         WHEN `district` = 'Fenmore' THEN 'Fenmoor'
-         WHEN `district` = 'Rivière' THEN 'Rivière'
+       CASE `district`
+         WHEN 'Fenmore' THEN 'Fenmoor'
+         WHEN 'Rivière' THEN 'Rivière'
          ELSE `district` END AS `district`,
        `note`,
        `tamis_line`
