@@ -114,6 +114,30 @@ void warning_text(const std::string& text) {
   ImGui::PopStyleColor();
 }
 
+void change_samples_table(const char* id, const ChangeRecord& change, const char* count_heading, float height) {
+  constexpr ImGuiTableFlags flags =
+      ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV | ImGuiTableFlags_ScrollY | ImGuiTableFlags_Resizable;
+  if (!ImGui::BeginTable(id, 4, flags, ImVec2(0, height))) return;
+  ImGui::TableSetupScrollFreeze(0, 1);
+  ImGui::TableSetupColumn("column");
+  ImGui::TableSetupColumn("before");
+  ImGui::TableSetupColumn("after");
+  ImGui::TableSetupColumn(count_heading, ImGuiTableColumnFlags_WidthFixed, ImGui::GetFontSize() * 4);
+  ImGui::TableHeadersRow();
+  for (const ValueChange& sample : change.samples()) {
+    ImGui::TableNextRow();
+    ImGui::TableNextColumn();
+    ImGui::TextUnformatted(sample.column.c_str());
+    ImGui::TableNextColumn();
+    draw_value(sample.before, sample.before == "NULL");
+    ImGui::TableNextColumn();
+    draw_value(sample.after, sample.after == "NULL");
+    ImGui::TableNextColumn();
+    ImGui::TextUnformatted(count_text(sample.count).c_str());
+  }
+  ImGui::EndTable();
+}
+
 DataGrid::Events DataGrid::draw(const GridSource& source, std::optional<size_t> selected_column) {
   Events events;
   const size_t columns = source.column_count();

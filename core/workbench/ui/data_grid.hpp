@@ -11,6 +11,8 @@
 #include <string>
 #include <string_view>
 
+#include "change.hpp"
+
 namespace tamis::ui {
 
 // What the grid shows: a view of a table (rows may be filtered or sorted).
@@ -75,5 +77,9 @@ void draw_value(std::string_view value, bool is_null);
 
 // A warning or conflict sentence, wrapped to the panel, in the warning colour.
 void warning_text(const std::string& text);
+
+// The before -> after samples of a change as a scrolling table (the Changes
+// panel and the step form's preview); `height` 0 fills the space left.
+void change_samples_table(const char* id, const ChangeRecord& change, const char* count_heading, float height);
 
 }  // namespace tamis::ui

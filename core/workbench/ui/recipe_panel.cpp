@@ -153,30 +153,8 @@ void Workbench::State::draw_changes_panel() {
 
   const float half = ImGui::GetContentRegionAvail().x * 0.5f;
   ImGui::BeginChild("##value-changes", ImVec2(change.removed.empty() ? 0 : half, 0));
-  if (!change.samples().empty() &&
-      ImGui::BeginTable("##samples", 4, ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV | ImGuiTableFlags_ScrollY |
-                                            ImGuiTableFlags_Resizable)) {
-    ImGui::TableSetupScrollFreeze(0, 1);
-    ImGui::TableSetupColumn("column");
-    ImGui::TableSetupColumn("before");
-    ImGui::TableSetupColumn("after");
-    ImGui::TableSetupColumn("cells", ImGuiTableColumnFlags_WidthFixed, ImGui::GetFontSize() * 4);
-    ImGui::TableHeadersRow();
-    for (const ValueChange& sample : change.samples()) {
-      ImGui::TableNextRow();
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(sample.column.c_str());
-      ImGui::TableNextColumn();
-      draw_value(sample.before, sample.before == "NULL");
-      ImGui::TableNextColumn();
-      draw_value(sample.after, sample.after == "NULL");
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(count_text(sample.count).c_str());
-    }
-    ImGui::EndTable();
-  } else if (change.samples().empty()) {
-    ImGui::TextDisabled("No values changed.");
-  }
+  if (change.samples().empty()) ImGui::TextDisabled("No values changed.");
+  else change_samples_table("##samples", change, "cells", 0);
   ImGui::EndChild();
   if (!change.removed.empty()) {
     ImGui::SameLine();

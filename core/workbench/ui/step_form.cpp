@@ -463,28 +463,8 @@ void StepForm::draw_preview() {
   }
   for (const std::string& conflict : change.conflicts) warning_text(conflict);
   for (const std::string& warning : change.warnings) warning_text(warning);
-  if (!change.samples().empty() &&
-      ImGui::BeginTable("##preview-samples", 4, ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV |
-                                                   ImGuiTableFlags_ScrollY,
-                        ImVec2(0, ImGui::GetTextLineHeightWithSpacing() * 7))) {
-    ImGui::TableSetupColumn("column");
-    ImGui::TableSetupColumn("before");
-    ImGui::TableSetupColumn("after");
-    ImGui::TableSetupColumn("rows", ImGuiTableColumnFlags_WidthFixed, ImGui::GetFontSize() * 4);
-    ImGui::TableHeadersRow();
-    for (const ValueChange& sample : change.samples()) {
-      ImGui::TableNextRow();
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(sample.column.c_str());
-      ImGui::TableNextColumn();
-      draw_value(sample.before, sample.before == "NULL");
-      ImGui::TableNextColumn();
-      draw_value(sample.after, sample.after == "NULL");
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(count_text(sample.count).c_str());
-    }
-    ImGui::EndTable();
-  }
+  if (!change.samples().empty())
+    change_samples_table("##preview-samples", change, "rows", ImGui::GetTextLineHeightWithSpacing() * 7);
   if (!change.removed.empty()) {
     ImGui::TextDisabled("Removed or rejected rows (first %zu):", change.removed.size());
     for (size_t i = 0; i < std::min<size_t>(change.removed.size(), 5); ++i)
