@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <set>
 
+#include "scalars.hpp"
 #include "steps/registry.hpp"
 
 namespace tamis {
@@ -289,6 +290,18 @@ Result<std::vector<size_t>> check_input_columns(const RecipeInput& input, const 
                                     " that the recipe does not expect (set input.unknown_columns to \"ignore\" "
                                     "to drop them)");
   return keep;
+}
+
+bool fits_declared_type(Type type, std::string_view value, const DateFormat& iso) {
+  if (value.empty()) return true;
+  switch (type) {
+    case Type::text: return true;
+    case Type::integer: return number_shape(value) == NumberShape::integer;
+    case Type::decimal: return number_shape(value) != NumberShape::not_a_number;
+    case Type::date: return iso.parse(value).has_value();
+    case Type::boolean: return parse_boolean(value).has_value();
+  }
+  return true;
 }
 
 Schema schema_of(const Table& table) {

@@ -14,6 +14,7 @@
 
 #include "change.hpp"
 #include "csv_reader.hpp"
+#include "dates.hpp"
 #include "error.hpp"
 #include "steps/step.hpp"
 
@@ -67,6 +68,11 @@ Result<CsvOptions> reading_options(const RecipeInput& input);
 // file columns to keep (all of them unless unknown_columns is "ignore").
 Result<std::vector<size_t>> check_input_columns(const RecipeInput& input, const std::vector<std::string>& names,
                                                 const std::string& file);
+
+// Whether a value as read fits the type input.columns declares for it (an
+// empty value fits every type; dates are ISO 8601, `iso` scans them). Rows
+// with a value that does not fit are rejected before the first step.
+bool fits_declared_type(Type type, std::string_view value, const DateFormat& iso);
 
 struct CompiledStep {
   int index = 0;  // position in the recipe (0-based), disabled steps included

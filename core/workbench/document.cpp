@@ -3,7 +3,6 @@
 #include <algorithm>
 
 #include "dates.hpp"
-#include "scalars.hpp"
 #include "steps/registry.hpp"
 #include "stepping.hpp"
 
@@ -65,20 +64,6 @@ size_t first_difference(const Recipe& a, const Recipe& b) {
   for (size_t i = 0; i < common; ++i)
     if (without_note(a.steps[i]) != without_note(b.steps[i])) return i;
   return common;
-}
-
-// What `tamis run` checks in input.columns types: the text as read must fit
-// (an empty value fits every type). Same rule as native/cli/run_support.cpp.
-bool fits_declared(Type type, std::string_view value, const DateFormat& iso) {
-  if (value.empty()) return true;
-  switch (type) {
-    case Type::text: return true;
-    case Type::integer: return number_shape(value) == NumberShape::integer;
-    case Type::decimal: return number_shape(value) != NumberShape::not_a_number;
-    case Type::date: return iso.parse(value).has_value();
-    case Type::boolean: return parse_boolean(value).has_value();
-  }
-  return true;
 }
 
 // The table without the listed rows (ascending): kept runs are sliced and
@@ -222,7 +207,7 @@ struct Document::State {
         for (const auto& [c, type] : declared) {
           if (table.column(c).is_null(r)) continue;
           const std::string_view value = table.column(c).text(r);
-          if (fits_declared(type, value, iso)) continue;
+          if (fits_declared_type(type, value, iso)) continue;
           if (s.input_rejects.size() < ChangeRecord::kListedRows)
             s.input_rejects.push_back({table.source_line(r), "column '" + table.name(c) + "' is declared " +
                                                                  std::string(type_name(type)) +

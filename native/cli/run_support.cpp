@@ -53,18 +53,6 @@ bool RejectCap::exceeded(uint64_t rejected, uint64_t rows_read) const {
 
 namespace {
 
-bool fits(Type type, std::string_view value, const DateFormat& iso) {
-  if (value.empty()) return true;
-  switch (type) {
-    case Type::text: return true;
-    case Type::integer: return number_shape(value) == NumberShape::integer;
-    case Type::decimal: return number_shape(value) != NumberShape::not_a_number;
-    case Type::date: return iso.parse(value).has_value();
-    case Type::boolean: return parse_boolean(value).has_value();
-  }
-  return true;
-}
-
 // The table without the listed rows (sorted, distinct).
 Result<Table> without_rows(const Table& table, const std::vector<size_t>& dropped) {
   auto filter = [&](const Column& column) {
@@ -155,7 +143,7 @@ Result<Table> InputCheck::apply(const Table& raw, std::vector<RemovedRow>& faili
     for (size_t c = 0; c < types_.size(); ++c) {
       if (types_[c] == Type::text || kept.column(c).is_null(r)) continue;
       const std::string_view value = kept.column(c).text(r);
-      if (fits(types_[c], value, iso)) continue;
+      if (fits_declared_type(types_[c], value, iso)) continue;
       failing.push_back({kept.source_line(r), "column '" + kept.name(c) + "' is declared " +
                                                   std::string(type_name(types_[c])) + " in input.columns; '" +
                                                   std::string(value) + "' is not"});
