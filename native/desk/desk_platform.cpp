@@ -57,4 +57,9 @@ Status DeskPlatform::save(const std::string& path, std::string_view bytes) {
   return sink.value()->commit();
 }
 
+std::string DeskPlatform::privacy_statement() const {
+  return "tamis-desk works only on this computer: it reads the files you open, writes only the files you save, "
+         "never changes the file it cleans, and makes no network connections.";
+}
+
 }  // namespace tamis::desk

@@ -15,6 +15,8 @@ class DeskPlatform final : public ui::Platform {
   std::string join_path(const std::string& folder, const std::string& name) const override;
   Result<std::unique_ptr<ByteSource>> open_for_reading(const std::string& path) override;
   Status save(const std::string& path, std::string_view bytes) override;
+  std::string privacy_statement() const override;
+  std::string demo_file() const override { return TAMIS_DEMO_FILE; }
 };
 
 }  // namespace tamis::desk

@@ -23,6 +23,7 @@
 #include "desk_platform.hpp"
 #include "look.hpp"
 #include "screenshot.hpp"
+#include "sdl_shortcuts.hpp"
 #include "workbench.hpp"
 
 namespace {
@@ -107,19 +108,6 @@ float framebuffer_ratio(SDL_Window* window) {
   SDL_GL_GetDrawableSize(window, &drawable_width, &drawable_height);
   if (window_width <= 0) return 1.0f;
   return std::max(1.0f, static_cast<float>(drawable_width) / static_cast<float>(window_width));
-}
-
-std::optional<tamis::ui::Command> shortcut_for(const SDL_KeyboardEvent& key) {
-  const bool ctrl = (key.keysym.mod & (KMOD_CTRL | KMOD_GUI)) != 0;
-  if (!ctrl) return std::nullopt;
-  const bool shift = (key.keysym.mod & KMOD_SHIFT) != 0;
-  switch (key.keysym.sym) {
-    case SDLK_o: return tamis::ui::Command::open;
-    case SDLK_s: return tamis::ui::Command::save;
-    case SDLK_f: return tamis::ui::Command::filter;
-    case SDLK_z: return shift ? tamis::ui::Command::redo : tamis::ui::Command::undo;
-    default: return std::nullopt;
-  }
 }
 
 double median_of(std::vector<double> values) {
@@ -235,8 +223,9 @@ int main(int argc, char** argv) {
         workbench.open_path(event.drop.file);
         SDL_free(event.drop.file);
       }
-      if (event.type == SDL_KEYDOWN && event.key.repeat == 0) {
-        if (const std::optional<tamis::ui::Command> command = shortcut_for(event.key)) workbench.run_command(*command);
+      if (event.type == SDL_KEYDOWN) {
+        if (const std::optional<tamis::ui::Command> command = tamis::shell::shortcut_for(event.key))
+          workbench.run_command(*command);
       }
     }
 

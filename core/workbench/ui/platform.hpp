@@ -38,9 +38,19 @@ class Platform {
   // Writes the whole file (atomically where the platform can).
   virtual Status save(const std::string& path, std::string_view bytes) = 0;
 
+  // What the shell's own file picker is asked for (browser shells).
+  enum class Pick { data_file, recipe };
   // Asks the shell's own picker for a file (browser shells); the shell then
-  // calls Workbench::open_path or open_source. False when there is none.
-  virtual bool request_open_picker() { return false; }
+  // calls Workbench::open_path or Workbench::open_recipe_path. False when there is none.
+  virtual bool request_open_picker(Pick) { return false; }
+
+  // A demo table this shell can open (the welcome screen offers it), or "".
+  virtual std::string demo_file() const { return {}; }
+  // Whether File > Quit makes sense (a browser tab is closed by the browser).
+  virtual bool can_quit() const { return true; }
+  // One paragraph for the About box: where files go and what the program
+  // can reach, in the words of this shell.
+  virtual std::string privacy_statement() const = 0;
 };
 
 }  // namespace tamis::ui

@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <chrono>
+#include <new>
 #include <sstream>
 
 #include "exports.hpp"
@@ -61,6 +62,17 @@ void Workbench::open_path(const std::string& path) {
   state_->open_screen.start(path);
 }
 
+void Workbench::open_recipe_path(const std::string& path) {
+  if (Status opened = state_->open_recipe(path); !opened) state_->say(opened.error().to_string(), true);
+}
+
+void Workbench::show_message(std::string text, bool is_error) { state_->say(std::move(text), is_error); }
+
+void Workbench::work_for(double milliseconds) {
+  state_->ask_for_missing_work();
+  state_->run_jobs_for(milliseconds);
+}
+
 // ---------------------------------------------------------------------------
 // Jobs
 
@@ -72,7 +84,19 @@ void Workbench::State::run_jobs_for(double milliseconds) {
   const Clock::time_point start = Clock::now();
   while (!jobs.empty()) {
     QueuedJob& current = jobs.front();
-    const bool ended = current.job->step(wb::kSliceBudget);
+    bool ended = false;
+    try {
+      ended = current.job->step(wb::kSliceBudget);
+    } catch (const std::bad_alloc&) {
+      // A browser tab has a hard memory limit; running out ends the work with
+      // a message instead of ending the program.
+      cancel_jobs();
+      jobs.clear();
+      say("Out of memory: this table does not fit in the memory this program may use here. "
+          "The desktop program tamis-desk, or tamis run (which streams files of any size), can clean it.",
+          true);
+      return;
+    }
     if (ended) {
       QueuedJob done = std::move(current);
       jobs.erase(jobs.begin());
@@ -155,7 +179,7 @@ void Workbench::State::show_open_browser() {
   if (platform.can_browse_folders()) {
     browser.show(FileBrowser::Purpose::open, "Open a CSV or TSV file");
   } else {
-    platform.request_open_picker();
+    platform.request_open_picker(Platform::Pick::data_file);
   }
 }
 
@@ -344,6 +368,11 @@ void Workbench::State::ask_export_path(ExportKind kind, Dialect dialect) {
     case ExportKind::sql: name = stem + "." + std::string(dialect_name(dialect)) + ".sql"; break;
     case ExportKind::report: name = stem + ".report.json"; break;
   }
+  if (!platform.can_browse_folders()) {
+    // A browser saves through a download; the browser asks where, or uses its Downloads folder.
+    if (Status saved = export_to(kind, dialect, name); !saved) say(saved.error().to_string(), true);
+    return;
+  }
   pending_export = kind;
   pending_dialect = dialect;
   browsing_for_recipe = false;
@@ -385,9 +414,13 @@ void Workbench::State::draw_menu() {
     if (ImGui::MenuItem("Open file...", "Ctrl+O")) show_open_browser();
     tip("Choose a CSV or TSV file to clean. The file itself is never changed.");
     if (ImGui::MenuItem("Open recipe...", nullptr, false, document != nullptr)) {
-      browsing_for_recipe = true;
-      pending_export.reset();
-      browser.show(FileBrowser::Purpose::open, "Open a recipe (JSON) and replay it on this file");
+      if (platform.can_browse_folders()) {
+        browsing_for_recipe = true;
+        pending_export.reset();
+        browser.show(FileBrowser::Purpose::open, "Open a recipe (JSON) and replay it on this file");
+      } else {
+        platform.request_open_picker(Platform::Pick::recipe);
+      }
     }
     tip("Replace the recipe with one saved earlier and replay it on this file; steps that no longer fit are marked.");
     if (ImGui::MenuItem("Save recipe", "Ctrl+S", false, document != nullptr)) {
@@ -418,9 +451,11 @@ void Workbench::State::draw_menu() {
       tip("What every step changed, with row counts that balance, as tamis run reports it.");
       ImGui::EndMenu();
     }
-    ImGui::Separator();
-    if (ImGui::MenuItem("Quit")) quit = true;
-    tip("Close tamis. Unsaved recipe changes are lost.");
+    if (platform.can_quit()) {
+      ImGui::Separator();
+      if (ImGui::MenuItem("Quit")) quit = true;
+      tip("Close tamis. Unsaved recipe changes are lost.");
+    }
     ImGui::EndMenu();
   }
   if (ImGui::BeginMenu("Edit")) {
@@ -458,7 +493,32 @@ void Workbench::State::draw_menu() {
     tip("Light text on a slate background.");
     ImGui::EndMenu();
   }
+  if (ImGui::BeginMenu("Help")) {
+    if (ImGui::MenuItem("About tamis")) show_about = true;
+    tip("What this program is, and where your files go.");
+    ImGui::EndMenu();
+  }
   ImGui::EndMenuBar();
+}
+
+void Workbench::State::draw_about() {
+  if (show_about) {
+    ImGui::OpenPopup("About tamis");
+    show_about = false;
+  }
+  ImGui::SetNextWindowSize(ImVec2(ImGui::GetFontSize() * 32, 0));
+  if (!ImGui::BeginPopupModal("About tamis", nullptr, ImGuiWindowFlags_NoResize)) return;
+  ImGui::TextUnformatted("tamis: clean a table, keep the raw file, replay the fix.");
+  ImGui::Spacing();
+  const std::string privacy = platform.privacy_statement();
+  ImGui::TextWrapped("%s", privacy.c_str());
+  ImGui::Spacing();
+  ImGui::TextWrapped("Every change becomes a step of a recipe. Review the rows a step removes before you rely on "
+                     "the result, keep the raw extract, and follow your organisation's rules on keeping and "
+                     "sharing data.");
+  ImGui::Spacing();
+  if (ImGui::Button("Close") || ImGui::IsKeyPressed(ImGuiKey_Escape)) ImGui::CloseCurrentPopup();
+  ImGui::EndPopup();
 }
 
 void Workbench::State::draw_welcome() {
@@ -468,6 +528,11 @@ void Workbench::State::draw_welcome() {
   ImGui::Spacing();
   if (ImGui::Button("Open file...")) show_open_browser();
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("Choose a file to clean. The file itself is never changed.");
+  if (const std::string demo = platform.demo_file(); !demo.empty()) {
+    ImGui::SameLine();
+    if (ImGui::Button("Open the demo")) open_screen.start(demo);
+    if (ImGui::IsItemHovered()) ImGui::SetTooltip("An invented city tree-planting survey with typical problems to try the screens on.");
+  }
 }
 
 void Workbench::State::draw_status_bar() {
@@ -603,6 +668,7 @@ void Workbench::frame() {
       }
     }
   }
+  s.draw_about();
   ImGui::End();
 
   if (std::optional<std::string> chosen = s.browser.draw()) {

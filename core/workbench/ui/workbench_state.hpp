@@ -156,6 +156,8 @@ struct Workbench::State {
   // Drawing.
   void draw_menu();
   void draw_welcome();
+  void draw_about();
+  bool show_about = false;
   void draw_status_bar();
   void draw_workspace();
   void draw_data_panel();
