@@ -109,9 +109,15 @@ class ConsoleLines {
     return this.lines.filter((l) => l.startsWith(prefix)).map((l) => l.slice(prefix.length).trim());
   }
   waitFor(match, what) {
-    const found = this.lines.find(match);
-    if (found !== undefined) return Promise.resolve(found);
-    return withHangGuard(new Promise((resolve) => this.waiters.push({ match, resolve })), what);
+    return this.waitForCount(match, 1, what);
+  }
+  // Resolves with the COUNT-th line that MATCH accepts.
+  waitForCount(match, count, what) {
+    let seen = this.lines.filter(match);
+    if (seen.length >= count) return Promise.resolve(seen[count - 1]);
+    let missing = count - seen.length;
+    const counting = (line) => match(line) && --missing === 0;
+    return withHangGuard(new Promise((resolve) => this.waiters.push({ match: counting, resolve })), what);
   }
 }
 
