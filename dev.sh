@@ -262,8 +262,9 @@ suite_fuzz() {
 
 wasm_build() {
   # emcmake's default emulator adds --experimental-wasm-threads, which node 20 rejects.
+  # The parity test compares the wasm engine's outputs with the native build's driver.
   emcmake cmake -S . -B build-wasm -G Ninja -DCMAKE_BUILD_TYPE=Release -DTAMIS_WASM_DEPS="$wasm_prefix" \
-    -DCMAKE_CROSSCOMPILING_EMULATOR="$(command -v node)"
+    -DCMAKE_CROSSCOMPILING_EMULATOR="$(command -v node)" -DTAMIS_NATIVE_BUILD="$repo/build"
   cmake --build build-wasm -j"$jobs"
 }
 

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <set>
 
+#include "byte_io.hpp"
 #include "scalars.hpp"
 #include "steps/registry.hpp"
 
@@ -166,6 +167,20 @@ Error syntax_error(std::string_view text, size_t byte, const std::string& what, 
 }
 
 }  // namespace
+
+Result<Recipe> load_recipe_file(const std::string& path) {
+  auto source = open_file_source(path);
+  if (!source) return source.take_error();
+  std::string text;
+  char buffer[1 << 16];
+  for (;;) {
+    auto n = (*source)->read(buffer, sizeof buffer);
+    if (!n) return n.take_error();
+    if (*n == 0) break;
+    text.append(buffer, *n);
+  }
+  return parse_recipe(text, path == "-" ? "<stdin>" : path);
+}
 
 Result<Recipe> parse_recipe(std::string_view text, const std::string& file) {
   json doc;

@@ -60,6 +60,8 @@ struct Recipe {
 
 // `file` names the recipe in messages.
 Result<Recipe> parse_recipe(std::string_view text, const std::string& file);
+// Reads and parses a recipe file; "-" reads standard input.
+Result<Recipe> load_recipe_file(const std::string& path);
 std::string recipe_to_json(const Recipe& recipe);
 
 Result<CsvOptions> reading_options(const RecipeInput& input);

@@ -3,6 +3,7 @@
 #include "batch_pipeline.hpp"
 #include "commands.hpp"
 #include "dates.hpp"
+#include "input_check.hpp"
 #include "progress.hpp"
 #include "run_support.hpp"
 

@@ -4,6 +4,7 @@
 #include "commands.hpp"
 #include "csv_writer.hpp"
 #include "progress.hpp"
+#include "run_rejects.hpp"
 #include "run_support.hpp"
 
 namespace tamis::cli {

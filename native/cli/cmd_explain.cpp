@@ -1,7 +1,8 @@
 #include <iostream>
 
 #include "commands.hpp"
-#include "run_support.hpp"
+#include "input_check.hpp"
+#include "recipe.hpp"
 #include "steps/registry.hpp"
 
 namespace tamis::cli {

@@ -7,15 +7,15 @@
 #include <cstdlib>
 #include <filesystem>
 #include <iostream>
-#include <limits>
-#include <mutex>
 
 #include "batch_pipeline.hpp"
 #include "commands.hpp"
 #include "csv_writer.hpp"
 #include "csvw.hpp"
+#include "input_check.hpp"
 #include "progress.hpp"
 #include "report/run_report_html.hpp"
+#include "run_rejects.hpp"
 #include "run_report.hpp"
 #include "run_support.hpp"
 #include "staged_run.hpp"
@@ -119,36 +119,6 @@ class SpoolingSource final : public ByteSource {
   std::shared_ptr<Spool> spool_;
 };
 
-// Records the reader sets aside arrive on the reading thread; they wait
-// here until the batches around them have been processed, so the rejects
-// file stays in source-line order.
-class ReaderRejects {
- public:
-  Status add(const RejectedRecord& r) {
-    std::lock_guard lock(mutex_);
-    waiting_.push_back(r);
-    return Ok{};
-  }
-  std::vector<RejectedRecord> take_through(uint64_t line) {
-    std::lock_guard lock(mutex_);
-    std::vector<RejectedRecord> out;
-    auto end = std::find_if(waiting_.begin(), waiting_.end(), [&](const RejectedRecord& r) { return r.line > line; });
-    out.assign(std::make_move_iterator(waiting_.begin()), std::make_move_iterator(end));
-    waiting_.erase(waiting_.begin(), end);
-    return out;
-  }
-
- private:
-  std::mutex mutex_;
-  std::vector<RejectedRecord> waiting_;
-};
-
-struct Reject {
-  uint64_t line;
-  std::string reason;
-  std::string record;
-};
-
 Status write_text_file(const std::string& path, const std::string& text) {
   auto sink = open_file_sink(path);
   if (!sink) return sink.take_error();
@@ -222,9 +192,12 @@ int run_run(const RunArgs& args) {
     spool = *made;
     source = std::unique_ptr<ByteSource>(new SpoolingSource(std::move(*source), spool));
   }
-  ReaderRejects reader_rejects;
+  // Records the reader sets aside arrive on the reading thread; they wait in
+  // `rejects` until the batches around them have been processed, so the
+  // rejects file stays in source-line order.
+  RunRejects rejects(*recipe);
   bool last_pass = false;  // set before any reading thread starts
-  auto on_reject = [&](const RejectedRecord& r) { return last_pass ? reader_rejects.add(r) : Status(Ok{}); };
+  auto on_reject = [&](const RejectedRecord& r) { return last_pass ? rejects.add_malformed(r) : Status(Ok{}); };
   auto opened = CsvReader::open(std::move(*source), display, *options, on_reject);
   if (!opened) return report_error(opened.error());
   std::unique_ptr<CsvReader> reader = std::move(*opened);
@@ -293,7 +266,6 @@ int run_run(const RunArgs& args) {
   std::vector<std::string_view> header;
   for (const ColumnSchema& c : compiled->output) header.push_back(c.name);
   if (Status s = writer->write_row(header); !s) return report_error(s.error());
-  RejectsFile rejects;
   if (!args.rejects.empty())
     if (Status s = rejects.open(args.rejects); !s) return report_error(s.error());
   auto date_format = DateFormat::compile(recipe->output.date_format);
@@ -305,40 +277,15 @@ int run_run(const RunArgs& args) {
   facts.input_file = display;
   facts.output_file = args.output;
   facts.passes = passes;
-  uint64_t rejected = 0;
-  std::optional<Reject> first_reject;
   const char input_delimiter = reader->report().delimiter;
-  // Writes one batch's rejects in line order and stops the run as soon as a
-  // count cap is exceeded (a share can only be judged at the end).
-  auto reject_batch = [&](const Table* raw, std::vector<RejectedRecord> from_reader,
-                          const std::vector<RemovedRow>& from_input, std::vector<RecipeRun::Rejected> from_steps) -> Status {
-    std::vector<Reject> all;
-    for (RejectedRecord& r : from_reader) all.push_back({r.line, "malformed record: " + r.reason, std::move(r.text)});
-    auto record_of = [&](uint64_t line) {
-      const auto row = raw ? row_at_line(*raw, line) : std::nullopt;
-      return row ? record_text(*raw, *row, input_delimiter) : std::string();
-    };
-    for (const RemovedRow& r : from_input) all.push_back({r.line, "input: " + r.reason, record_of(r.line)});
-    for (const RecipeRun::Rejected& r : from_steps) {
-      const std::string op = recipe->steps[static_cast<size_t>(r.step)].op;
-      all.push_back({r.row.line, "step " + std::to_string(r.step + 1) + " (" + op + "): " + r.row.reason,
-                     record_of(r.row.line)});
-    }
-    std::stable_sort(all.begin(), all.end(), [](const Reject& a, const Reject& b) { return a.line < b.line; });
-    for (Reject& r : all) {
-      if (Status s = rejects.add(r.line, r.reason, r.record); !s) return s;
-      if (!first_reject) first_reject = std::move(r);
-    }
-    rejected += all.size();
-    return Ok{};
-  };
   auto over_cap = [&](uint64_t rows_read) -> int {
     if (Status s = rejects.commit(); !s) return report_error(s.error());
+    const uint64_t rejected = rejects.count();
     std::string message = std::to_string(rejected) + (rejected == 1 ? " row" : " rows") +
                           " rejected, more than the cap of " + cap->text +
                           (cap->percent ? " of " + std::to_string(rows_read) + " rows read" : std::string()) +
                           " (--max-rejects or input.max_rejects); no output written. First: line " +
-                          std::to_string(first_reject->line) + ": " + first_reject->reason;
+                          std::to_string(rejects.first()->line) + ": " + rejects.first()->reason;
     message += args.rejects.empty() ? "; use --rejects FILE to see every rejected row"
                                     : "; the rejected rows so far are in " + args.rejects;
     return report_error(input_error(display, 0, message));
@@ -366,12 +313,10 @@ int run_run(const RunArgs& args) {
       facts.rows_failing_input_types += batch.failing.size();
       if (!batch.failing.empty() && !facts.first_failing_input_type_line)
         facts.first_failing_input_type_line = batch.failing.front().line;
-      const uint64_t through = raw.row_count() ? raw.source_line(raw.row_count() - 1) : 0;
-      if (Status s = reject_batch(&raw, reader_rejects.take_through(through), batch.failing,
-                                  std::move(batch.rejected));
-          !s)
+      if (Status s = rejects.add_batch(raw, input_delimiter, batch.failing, std::move(batch.rejected)); !s)
         return report_error(s.error());
-      if (cap->count && cap->exceeded(rejected, 0)) return over_cap(0);
+      // A count cap stops the run as soon as it is exceeded; a share can only be judged at the end.
+      if (cap->count && cap->exceeded(rejects.count(), 0)) return over_cap(0);
       const Table& out = batch.table;
       if (Status s = writer->write_table(out); !s) return report_error(s.error());
       if (!args.metadata.empty()) nulls.observe(out);
@@ -381,12 +326,11 @@ int run_run(const RunArgs& args) {
     }
   }
   progress.finish();
-  if (Status s = reject_batch(nullptr, reader_rejects.take_through(std::numeric_limits<uint64_t>::max()), {}, {});
-      !s)
-    return report_error(s.error());
+  if (Status s = rejects.finish_input(); !s) return report_error(s.error());
   if (Status s = run.finish(); !s) return report_error(s.error());
   facts.read = reader->report();
   const RunTotals totals = run_totals(facts, run.changes());
+  const uint64_t rejected = rejects.count();
   if (rejected != totals.rows_rejected)
     return report_error(input_error(display, 0,
                                     "the rejects file got " + std::to_string(rejected) + " rows, the steps counted " +

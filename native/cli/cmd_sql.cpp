@@ -1,6 +1,7 @@
 #include <iostream>
 
 #include "commands.hpp"
+#include "recipe.hpp"
 #include "run_support.hpp"
 #include "sql/sql_export.hpp"
 

@@ -42,6 +42,8 @@ import time
 
 import sqlite3
 
+from random_steps import COLUMN_STEPS, step_cases
+
 TAMIS = sys.argv[1]
 RANDOM_RECIPES = int(sys.argv[sys.argv.index('--random') + 1]) if '--random' in sys.argv else 200
 HERE = os.path.dirname(os.path.abspath(__file__))
@@ -80,10 +82,6 @@ PIECES = ['Oak', 'oak', 'OAK', ' Oak', 'Oak ', '\u00a0Oak', 'Oak\t', 'Ash  Row',
           'OAK', 'STRAẞE', 'strasse', '\u212aale', 'Kale', '\u017fite', 'S\u0130TE', 'ΣΊΣΥΦΟΣ']
 
 
-NUMBER_FORMS = [{}, {'group_mark': ','}, {'decimal_mark': ',', 'group_mark': '.'}, {'decimal_mark': ',', 'group_mark': ' '},
-                {'group_mark': "'"}, {'strip': '%'}, {'percent': True}, {'strip': '\u00a0 ', 'percent': True}]
-
-
 def messy_table(rng, rows):
     table = []
     for _ in range(rows):
@@ -102,80 +100,6 @@ def write_csv(path, header, rows):
 
 
 # ---------------------------------------------------------------- steps
-def step_cases(rng):
-    """(name, step) pairs; every step kind the recipe format has."""
-    cols = COLUMNS
-    some = lambda: rng.sample(cols, rng.randint(1, 3))
-    return [
-        ('trim both', {'op': 'trim', 'columns': '*'}),
-        ('trim leading', {'op': 'trim', 'columns': some(), 'side': 'leading'}),
-        ('trim trailing chars', {'op': 'trim', 'columns': some(), 'side': 'trailing', 'chars': '.\u00a0\''}),
-        ('collapse_spaces', {'op': 'collapse_spaces', 'columns': some()}),
-        ('change_case upper', {'op': 'change_case', 'columns': some(), 'to': 'upper'}),
-        ('change_case title', {'op': 'change_case', 'columns': some(), 'to': 'title'}),
-        ('normalize_unicode NFC', {'op': 'normalize_unicode', 'columns': some(), 'form': 'NFC'}),
-        ('normalize_unicode NFKC', {'op': 'normalize_unicode', 'columns': some(), 'form': 'NFKC'}),
-        ('replace_text literal', {'op': 'replace_text', 'columns': some(), 'find': rng.choice(['a', ',', "'", '\\', 'Oak']),
-                                  'replace': rng.choice(['', '.', "''", 'Ö'])}),
-        ('replace_text entire', {'op': 'replace_text', 'columns': some(), 'find': rng.choice(['Oak', '', 'N/A']),
-                                 'replace': 'Eiche', 'match': 'entire'}),
-        ('replace_text regex', {'op': 'replace_text', 'columns': some(), 'find': 'a+', 'replace': 'b', 'match': 'regex'}),
-        ('map_values', {'op': 'map_values', 'column': rng.choice(cols),
-                        'map': {'oak': 'Oak', 'OAK': 'Oak', 'Rivie\u0300re': 'Rivière', 'Oak ': 'Oak', 'a': 'A'}}),
-        ('map_values ignore_case', {'op': 'map_values', 'column': rng.choice(cols), 'ignore_case': True,
-                                    'map': rng.choice([{'oak': 'Oak'}, {'Straße': 'Street', 'kale': 'Kale', 'SITE': 'site'},
-                                                       {'σίσυφος': 'Sisyphus', 'rivière': 'Rivière', 'élan': 'Elan'}])}),
-        ('to_null', {'op': 'to_null', 'columns': some(), 'values': rng.sample(['N/A', '-', 'Oak', "it's"], 2),
-                     'blank': rng.random() < 0.7}),
-        ('deduplicate exact', {'op': 'deduplicate', 'columns': rng.choice(['*', some()]), 'keep': rng.choice(['first', 'last'])}),
-        ('deduplicate trimmed', {'op': 'deduplicate', 'columns': some(), 'keep': rng.choice(['first', 'last']),
-                                 'compare': 'trimmed'}),
-        ('deduplicate casefold', {'op': 'deduplicate', 'columns': some(), 'compare': 'casefold'}),
-        ('fill_from_group', {'op': 'fill_from_group', 'column': 'note', 'keys': rng.sample(cols[:3], rng.randint(1, 2))}),
-        ('carry_forward', {'op': 'carry_forward', 'column': 'note', 'group_by': rng.sample(cols[:3], rng.randint(0, 1))}),
-        ('require not_null', {'op': 'require', 'rule': 'not_null', 'columns': some()}),
-        ('require unique', {'op': 'require', 'rule': 'unique', 'columns': some()}),
-        ('require in_set', {'op': 'require', 'rule': 'in_set', 'columns': [rng.choice(cols)], 'values': PIECES[:20]}),
-        ('require row_count', {'op': 'require', 'rule': 'row_count', 'min': rng.randint(1, 50)}),
-        ('require pattern', {'op': 'require', 'rule': 'pattern', 'columns': some(), 'pattern': '.*'}),
-        ('keep_rows', {'op': 'keep_rows', 'where': rng.choice([
-            'site IS NOT NULL', "site < district OR note IN ('a', 'Z', 'Oak ')", "NOT (code BETWEEN 'A' AND 'a')",
-            "site <> 'Oak' AND (note IS NULL OR note > 'N')",
-            # LIKE (% and _ over code points, case-sensitive, ESCAPE), CHAR_LENGTH, IS [NOT] TRUE
-            "site LIKE 'O%'", "site NOT LIKE '%a_'", "note LIKE '%!%%' ESCAPE '!'", "district LIKE '_'",
-            "code LIKE '%[*?]%' OR site LIKE '% %'", "CHAR_LENGTH(site) > 3", "(site = 'Oak') IS NOT TRUE",
-            "(note < 'b') IS FALSE"])}),
-        ('drop_rows', {'op': 'drop_rows', 'where': rng.choice([
-            "site = 'Oak'", "district NOT IN ('Oak', 'it''s')", "NULLIF(site, 'Oak') IS NULL",
-            "CASE site WHEN 'Oak' THEN TRUE WHEN 'A' THEN NULL ELSE FALSE END"])}),
-        ('derive_column', {'op': 'derive_column', 'name': 'both', 'expr': rng.choice([
-            "site || district", "CASE WHEN site = 'Oak' THEN 'tree' ELSE COALESCE(note, 'none') END",
-            "NULLIF(site, '') || '|' || COALESCE(code, '')",
-            # SUBSTRING from a literal start of at least 1, TRIM with literal character sets
-            "SUBSTRING(site FROM 2 FOR 3)", "SUBSTRING(district, 1, 2) || '|' || SUBSTRING(note FROM 3)",
-            "TRIM(site)", "TRIM(BOTH '.' FROM site)", "TRIM(LEADING 'aO ' FROM district)", "TRIM(TRAILING '' FROM note)"])}),
-        ('derive_column integer', {'op': 'derive_column', 'name': 'n', 'expr': rng.choice([
-            '2 * 3 - 10', 'ABS(CHAR_LENGTH(site) - 5)', 'ROUND(CHAR_LENGTH(note), 2) * 2'])}),
-        ('cast text', {'op': 'cast', 'column': 'code', 'to': 'text'}),
-        ('split_column', {'op': 'split_column', 'column': rng.choice(cols), 'separator': rng.choice([' ', ',', 'a', 'Ash ', '\u2003']),
-                          'into': ['first', 'second', 'rest'][:rng.randint(2, 3)]}),
-        ('parse_date', {'op': 'parse_date', 'column': rng.choice(cols), 'on_error': rng.choice(['null', 'keep']),
-                        'formats': rng.sample(['%Y-%m-%d', '%m/%d/%Y', '%m/%d/%y', '%d.%m.%Y', '%d/%m/%Y'],
-                                              rng.randint(1, 4))}),
-        ('parse_number', dict({'op': 'parse_number', 'column': rng.choice(cols), 'scale': rng.choice([0, 1, 2, 18]),
-                               'on_error': rng.choice(['null', 'keep'])}, **rng.choice(NUMBER_FORMS))),
-        ('parse_number reject', {'op': 'parse_number', 'column': rng.choice(cols), 'scale': 1, 'on_error': 'reject'}),
-        ('cast', {'op': 'cast', 'column': 'code', 'to': 'integer', 'on_error': 'null'}),
-        ('cast typed', {'op': 'cast', 'column': rng.choice(cols), 'on_error': rng.choice(['null', 'keep']),
-                        'to': rng.choice(['integer', 'date', 'boolean'])}),
-        ('cast decimal', {'op': 'cast', 'column': rng.choice(cols), 'to': 'decimal', 'scale': rng.choice([0, 2]),
-                          'on_error': 'null'}),
-        ('drop_columns', {'op': 'drop_columns', 'columns': ['code']}),
-        ('rename_columns', {'op': 'rename_columns', 'map': {'site': 'Site name', 'note': 'it\'s "quoted"'}}),
-        ('reorder_columns', {'op': 'reorder_columns', 'columns': ['note', 'site']}),
-    ]
-
-
 # Steps whose export each dialect must accept (exact in every dialect
 # listed): the test fails if one of them is refused.
 MUST_EXPORT = {
@@ -192,8 +116,6 @@ MUST_EXPORT = {
     'parse_number reject': ['duckdb', 'postgres', 'mysql'], 'split_column': DIALECTS,
     'collapse_spaces': DIALECTS,
 }
-# Column steps change names, so generated recipes put them last only.
-COLUMN_STEPS = ('drop_columns', 'rename_columns', 'reorder_columns')
 
 
 def recipe_of(steps):
@@ -639,11 +561,11 @@ def main():
         timings['server start'] = time.monotonic() - t
 
         cases = []  # (label, recipe, rows)
-        for name, step in step_cases(rng):
+        for name, step in step_cases(rng, COLUMNS, PIECES[:20]):
             cases.append(('step ' + name, recipe_of([dict(step, note="checks '" + name + "'")]),
                           messy_table(rng, 40), name))
         for n in range(RANDOM_RECIPES):
-            catalogue = step_cases(rng)
+            catalogue = step_cases(rng, COLUMNS, PIECES[:20])
             row_steps = [c for c in catalogue if c[0] not in COLUMN_STEPS]
             picked = [rng.choice(row_steps)[1] for _ in range(rng.randint(1, 5))]
             if rng.random() < 0.2:
