@@ -334,14 +334,11 @@ int run_run(const RunArgs& args) {
   };
   auto over_cap = [&](uint64_t rows_read) -> int {
     if (Status s = rejects.commit(); !s) return report_error(s.error());
-    std::string message = std::to_string(rejected) + (rejected == 1 ? " row" : " rows") +
-                          " rejected, more than the cap of " + cap->text +
-                          (cap->percent ? " of " + std::to_string(rows_read) + " rows read" : std::string()) +
-                          " (--max-rejects or input.max_rejects); no output written. First: line " +
-                          std::to_string(first_reject->line) + ": " + first_reject->reason;
+    Error error = cap->error(display, rejected, rows_read, RemovedRow{first_reject->line, first_reject->reason});
+    std::string& message = error.message;
     message += args.rejects.empty() ? "; use --rejects FILE to see every rejected row"
                                     : "; the rejected rows so far are in " + args.rejects;
-    return report_error(input_error(display, 0, message));
+    return report_error(error);
   };
 
   // A decimal's scale can depend on the data (parse_number without scale):

@@ -12,22 +12,12 @@
 #include "byte_io.hpp"
 #include "csv_writer.hpp"
 #include "recipe.hpp"
+#include "run_report.hpp"
 
 namespace tamis::cli {
 
 // "-" reads the recipe from standard input.
 Result<Recipe> load_recipe_file(const std::string& path);
-
-// --max-rejects / input.max_rejects: a count ("25") or a share of the rows
-// read ("0.5%").
-struct RejectCap {
-  std::optional<uint64_t> count;
-  std::optional<double> percent;
-  std::string text;
-
-  static Result<RejectCap> parse(const std::string& text);
-  bool exceeded(uint64_t rejected, uint64_t rows_read) const;
-};
 
 // The input section applied to each batch the reader delivers: columns the
 // recipe does not expect are dropped (unknown_columns "ignore"; "fail" has
