@@ -1,6 +1,10 @@
 #include "run_report.hpp"
 
+#include <algorithm>
+#include <cmath>
 #include <sstream>
+
+#include "scalars.hpp"
 
 namespace tamis {
 
@@ -62,6 +66,43 @@ std::string step_line(const CompiledStep& s, const ChangeRecord& c) {
 }
 
 }  // namespace
+
+Result<RejectCap> RejectCap::parse(const std::string& text) {
+  RejectCap cap;
+  cap.text = text;
+  auto bad = [&] {
+    return usage_error("the rejects cap must be a count such as 25 or a share such as 0.5% (got '" + text + "')");
+  };
+  if (text.empty()) return bad();
+  const bool percent = text.back() == '%';
+  const std::string number = percent ? text.substr(0, text.size() - 1) : text;
+  if (percent) {
+    if (number_shape(number) == NumberShape::not_a_number || number[0] == '-' || number[0] == '+') return bad();
+    const auto value = parse_double(number);
+    if (!value || !std::isfinite(*value) || *value > 100) return bad();
+    cap.percent = *value;
+    return cap;
+  }
+  if (number.size() > 18 || !std::all_of(number.begin(), number.end(), [](char c) { return c >= '0' && c <= '9'; }))
+    return bad();
+  cap.count = std::stoull(number);
+  return cap;
+}
+
+bool RejectCap::exceeded(uint64_t rejected, uint64_t rows_read) const {
+  if (count) return rejected > *count;
+  // A share of the rows read: 1% of 250 rows allows 2 (2.5 rounded down).
+  return static_cast<double>(rejected) > *percent / 100.0 * static_cast<double>(rows_read);
+}
+
+Error RejectCap::error(const std::string& input_file, uint64_t rejected, uint64_t rows_read,
+                       const RemovedRow& first) const {
+  return input_error(input_file, 0,
+                     std::to_string(rejected) + (rejected == 1 ? " row" : " rows") + " rejected, more than the cap of " +
+                         text + (percent ? " of " + std::to_string(rows_read) + " rows read" : std::string()) +
+                         " (--max-rejects or input.max_rejects); no output written. First: line " +
+                         std::to_string(first.line) + ": " + first.reason);
+}
 
 RunTotals run_totals(const RunFacts& facts, const std::vector<ChangeRecord>& changes) {
   RunTotals t;

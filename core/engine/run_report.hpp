@@ -10,6 +10,7 @@
 #include <nlohmann/json.hpp>
 
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -39,6 +40,23 @@ struct RunTotals {
 };
 
 RunTotals run_totals(const RunFacts& facts, const std::vector<ChangeRecord>& changes);
+
+// input.max_rejects (or `tamis run --max-rejects`): a count ("25") or a share
+// of the rows read ("0.5%"). One rule for `tamis run`, `tamis check` and the
+// workbench's export.
+struct RejectCap {
+  std::optional<uint64_t> count;
+  std::optional<double> percent;
+  std::string text;
+
+  static Result<RejectCap> parse(const std::string& text);
+  // The recipe's cap; none given allows no rejected row.
+  static Result<RejectCap> of(const RecipeInput& input) { return parse(input.max_rejects.value_or("0")); }
+  bool exceeded(uint64_t rejected, uint64_t rows_read) const;
+  // The error when exceeded: counts, the cap, and the first rejected row.
+  // rows_read is shown only for a share.
+  Error error(const std::string& input_file, uint64_t rejected, uint64_t rows_read, const RemovedRow& first) const;
+};
 
 // Checks the accounting: every step's rows in = rows out + removed +
 // rejected, each step receives what the one before produced, the first step

@@ -448,7 +448,7 @@ class ProfileJob final : public StageJob {
   using StageJob::StageJob;
 
  private:
-  void start(const Table& table) override { profiler_ = std::make_unique<TableProfiler>(as_text(table)); }
+  void start(const Table& table) override { profiler_ = std::make_unique<TableProfiler>(table); }
   bool work(size_t budget) override { return profiler_->step(budget); }
   double work_progress() const override { return profiler_->progress(); }
   std::string work_label() const override { return "Profiling the columns"; }
@@ -496,8 +496,8 @@ class FindingsJob final : public StageJob {
     s_.findings = fitting_findings(scanner_->result());
     s_.findings_serial = serial;
   }
-  // The detectors saw typed columns as text (the engine's profiler reads
-  // text only): a finding about a typed column whose fixes all need text
+  // The detectors saw typed columns as text (some of them read text only),
+  // and the profile describes a typed column by its canonical text: a finding about a typed column whose fixes all need text
   // ("dates stored as text" on a date column) is not a problem of this stage.
   std::vector<Finding> fitting_findings(const std::vector<Finding>& found) const {
     std::vector<Finding> out;

@@ -20,10 +20,57 @@ Status ready_for_export(Document& document) {
   return e;
 }
 
+// What `tamis run` would count for this recipe over this file.
+RunFacts run_facts(Document& document, const std::string& output_name) {
+  RunFacts facts;
+  facts.recipe_file = document.recipe().title.empty() ? "workbench recipe" : document.recipe().title;
+  facts.input_file = document.file().name;
+  facts.output_file = output_name;
+  facts.read = document.file().read;
+  facts.rows_failing_input_types = document.input_rejected_rows();
+  if (!document.input_rejects().empty()) facts.first_failing_input_type_line = document.input_rejects().front().line;
+  facts.rows_written = document.result().row_count();
+  return facts;
+}
+
+// The first rejected row as `tamis run` names it: a malformed record, a
+// value not fitting input.columns, or a row a step rejected.
+RemovedRow first_reject(Document& document) {
+  std::optional<RemovedRow> first;
+  auto consider = [&](uint64_t line, std::string reason) {
+    if (!first || line < first->line) first = RemovedRow{line, std::move(reason)};
+  };
+  if (!document.file().rejected.empty())
+    consider(document.file().rejected.front().line, "malformed record: " + document.file().rejected.front().reason);
+  if (!document.input_rejects().empty())
+    consider(document.input_rejects().front().line, "input: " + document.input_rejects().front().reason);
+  for (size_t i = 0; i < document.step_count(); ++i) {
+    ChangeRecord change = document.change(i);
+    const std::vector<RemovedRow> rejected = change.take_rejected();
+    if (!rejected.empty())
+      consider(rejected.front().line, "step " + std::to_string(i + 1) + " (" + document.recipe().steps[i].op +
+                                          "): " + rejected.front().reason);
+  }
+  return first.value_or(RemovedRow{});
+}
+
+// `tamis run` writes nothing when more rows are rejected than
+// input.max_rejects allows; neither does the export.
+Status within_reject_cap(Document& document) {
+  auto cap = RejectCap::of(document.recipe().input);
+  if (!cap) return cap.take_error();
+  std::vector<ChangeRecord> changes;
+  for (size_t i = 0; i < document.step_count(); ++i) changes.push_back(document.change(i));
+  const RunTotals totals = run_totals(run_facts(document, ""), changes);
+  if (!cap->exceeded(totals.rows_rejected, totals.rows_read)) return Ok{};
+  return cap->error(document.file().name, totals.rows_rejected, totals.rows_read, first_reject(document));
+}
+
 }  // namespace
 
 Result<std::string> export_cleaned(Document& document, std::optional<std::string> format) {
   if (Status s = ready_for_export(document); !s) return s.take_error();
+  if (Status s = within_reject_cap(document); !s) return s.take_error();
   const Recipe& recipe = document.recipe();
   const std::string chosen = format.value_or(recipe.output.format);
   if (chosen != "csv" && chosen != "tsv") return usage_error("export format must be csv or tsv, not '" + chosen + "'");
@@ -58,14 +105,7 @@ Result<std::string> export_run_report(Document& document, const std::string& out
   std::vector<ChangeRecord> changes;
   for (const CompiledStep& step : compiled->steps) changes.push_back(document.change(static_cast<size_t>(step.index)));
   compiled->output = schema_of(document.result());
-  RunFacts facts;
-  facts.recipe_file = document.recipe().title.empty() ? "workbench recipe" : document.recipe().title;
-  facts.input_file = document.file().name;
-  facts.output_file = output_name;
-  facts.read = document.file().read;
-  facts.rows_failing_input_types = document.input_rejected_rows();
-  if (!document.input_rejects().empty()) facts.first_failing_input_type_line = document.input_rejects().front().line;
-  facts.rows_written = document.result().row_count();
+  RunFacts facts = run_facts(document, output_name);
   facts.passes = RecipeRun(*compiled).passes();
   return run_report_json(document.recipe(), *compiled, changes, facts).dump(2) + "\n";
 }

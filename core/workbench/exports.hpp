@@ -12,7 +12,9 @@
 namespace tamis::workbench {
 
 // CSV or TSV (default: the recipe's output.format), with the recipe's NULL
-// marker and date format. Fails while a step does not fit the file.
+// marker and date format. Fails while a step does not fit the file, and,
+// as `tamis run` does, when more rows are rejected than input.max_rejects
+// allows (RejectCap).
 Result<std::string> export_cleaned(Document& document, std::optional<std::string> format = std::nullopt);
 std::string export_recipe(const Document& document);
 Result<std::string> export_sql_script(const Document& document, Dialect dialect, bool allow_approximate = false);

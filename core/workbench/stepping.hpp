@@ -24,8 +24,9 @@ Table slice_rows(const Table& table, size_t begin, size_t end);
 std::vector<std::pair<size_t, size_t>> batch_ranges(const Table& table, size_t target_rows);
 
 // The table with every typed column as its canonical text (design §3; dates
-// in ISO 8601), chunk by chunk. The profiler reads every column as text, so
-// a stage after parse_date or parse_number is profiled through this view.
+// in ISO 8601), chunk by chunk. Some finding detectors read every column as
+// text, so a stage after parse_date or parse_number is searched through
+// this view.
 Table as_text(const Table& table);
 
 class StepRunner {

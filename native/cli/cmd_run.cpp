@@ -280,15 +280,10 @@ int run_run(const RunArgs& args) {
   const char input_delimiter = reader->report().delimiter;
   auto over_cap = [&](uint64_t rows_read) -> int {
     if (Status s = rejects.commit(); !s) return report_error(s.error());
-    const uint64_t rejected = rejects.count();
-    std::string message = std::to_string(rejected) + (rejected == 1 ? " row" : " rows") +
-                          " rejected, more than the cap of " + cap->text +
-                          (cap->percent ? " of " + std::to_string(rows_read) + " rows read" : std::string()) +
-                          " (--max-rejects or input.max_rejects); no output written. First: line " +
-                          std::to_string(rejects.first()->line) + ": " + rejects.first()->reason;
-    message += args.rejects.empty() ? "; use --rejects FILE to see every rejected row"
-                                    : "; the rejected rows so far are in " + args.rejects;
-    return report_error(input_error(display, 0, message));
+    Error error = cap->error(display, rejects.count(), rows_read, RemovedRow{rejects.first()->line, rejects.first()->reason});
+    error.message += args.rejects.empty() ? "; use --rejects FILE to see every rejected row"
+                                          : "; the rejected rows so far are in " + args.rejects;
+    return report_error(error);
   };
 
   // A decimal's scale can depend on the data (parse_number without scale):

@@ -8,6 +8,7 @@
 #include <imgui.h>
 #include <imgui_impl_opengl3.h>
 #include <imgui_impl_sdl.h>
+#include <malloc.h>
 
 #include <algorithm>
 #include <chrono>
@@ -39,7 +40,8 @@ constexpr const char* kUsage =
     "  --scale S       interface scale (default: from the display's DPI)\n"
     "  --script FILE   replay UI actions, one per line, then quit (test mode)\n"
     "  --screenshot F  with --script: save the last frame as a PNG\n"
-    "  --timings       print time to first screen and frame times to stderr\n";
+    "  --timings       print time to first screen and frame times to stderr; with\n"
+    "                  --script also each action's time and the memory in use\n";
 
 struct Options {
   std::optional<std::string> file;
@@ -90,6 +92,25 @@ std::optional<Options> parse_options(int argc, char** argv) {
   }
   if (options.screenshot && !options.script) return std::nullopt;
   return options;
+}
+
+// Resident memory now and at its peak, in MB, from /proc/self/status
+// (Linux; both stay 0 elsewhere).
+struct MemoryUse {
+  double now_mb = 0;
+  double peak_mb = 0;
+};
+
+MemoryUse memory_use() {
+  MemoryUse use;
+  std::ifstream status("/proc/self/status");
+  std::string line;
+  while (std::getline(status, line)) {
+    const double kb = std::strtod(line.c_str() + std::min(line.size(), size_t{6}), nullptr);
+    if (line.rfind("VmRSS:", 0) == 0) use.now_mb = kb / 1024.0;
+    if (line.rfind("VmHWM:", 0) == 0) use.peak_mb = kb / 1024.0;
+  }
+  return use;
 }
 
 // The interface scale: the display's DPI over 96 (the reference of most
@@ -204,6 +225,9 @@ int main(int argc, char** argv) {
   std::vector<double> measured_ui_ms;  // the workbench's own share: events, layout and draw lists, no GL
   bool was_busy = false;
   bool table_seen = false;
+  // Set while a script action runs (its work included); --timings reports it.
+  bool timing_action = false;
+  Clock::time_point action_started;
   bool running = true;
   // ImGui settles over a few frames after input (a click opens a popup on
   // the next frame), so a few frames are drawn after each event before the
@@ -230,7 +254,18 @@ int main(int argc, char** argv) {
     }
 
     if (options.script && !workbench.busy()) {
+      if (timing_action && options.timings) {
+        const double ms = std::chrono::duration<double, std::milli>(Clock::now() - action_started).count();
+        const MemoryUse memory = memory_use();
+        std::fprintf(stderr, "tamis-desk: line %zu (%s) done in %.1f ms; memory %.1f MB, peak %.1f MB\n", next_action,
+                     script[next_action - 1].substr(0, script[next_action - 1].find(' ')).c_str(), ms,
+                     memory.now_mb, memory.peak_mb);
+      }
+      timing_action = false;
       if (next_action < script.size()) {
+        const std::string& line = script[next_action];
+        timing_action = !line.empty() && line[0] != '#';
+        action_started = Clock::now();
         const tamis::Status done = workbench.run_action(script[next_action]);
         if (!done) {
           std::fprintf(stderr, "tamis-desk: script line %zu: %s\n", next_action + 1, done.error().message.c_str());
@@ -271,16 +306,21 @@ int main(int argc, char** argv) {
       std::fprintf(stderr, "tamis-desk: first screen after %.1f ms\n", ms);
     }
     first_frame = false;
+    const bool busy = workbench.busy();
+    // The jobs' scratch tables (previews, profiles, the findings' tidied
+    // copy) are freed in many small blocks between live ones; glibc keeps
+    // such pages until asked, so the memory of the tables no longer held
+    // goes back to the system once the work is done.
+    if (was_busy && !busy) malloc_trim(0);
     if (options.timings) {
       const double since_start = std::chrono::duration<double, std::milli>(Clock::now() - started).count();
       if (!table_seen && workbench.showing_table()) {
         table_seen = true;
         std::fprintf(stderr, "tamis-desk: table shown after %.1f ms\n", since_start);
       }
-      const bool busy = workbench.busy();
       if (was_busy && !busy) std::fprintf(stderr, "tamis-desk: all work done after %.1f ms\n", since_start);
-      was_busy = busy;
     }
+    was_busy = busy;
     if (workbench.measuring_frames()) {
       measured_ms.push_back(std::chrono::duration<double, std::milli>(Clock::now() - frame_start).count());
       measured_ui_ms.push_back(ui_ms);

@@ -45,6 +45,23 @@ Table column_table(const std::vector<std::optional<std::string>>& values) {
   return std::move(table).value();
 }
 
+// The same column stored typed: int64 values (table.hpp), NULL where absent.
+Table typed_table(Type type, int scale, const std::vector<std::optional<int64_t>>& values) {
+  auto chunk = std::make_shared<ColumnChunk>();
+  chunk->rows = values.size();
+  chunk->validity.assign((values.size() + 63) / 64, 0);
+  for (size_t i = 0; i < values.size(); ++i) {
+    chunk->numbers.push_back(values[i].value_or(0));
+    if (values[i]) chunk->validity[i >> 6] |= uint64_t{1} << (i & 63);
+  }
+  auto column = std::make_shared<Column>(type, scale);
+  column->append_chunk(chunk);
+  const Table text = column_table(std::vector<std::optional<std::string>>(values.size(), ""));
+  auto table = Table::make({"v"}, {column}, text.source_lines_ptr());
+  REQUIRE(table.ok());
+  return std::move(table).value();
+}
+
 ColumnProfile single(const std::vector<std::optional<std::string>>& values) {
   const TableProfile p = profile_table(column_table(values));
   REQUIRE(p.columns.size() == 1);
@@ -367,6 +384,45 @@ TEST_CASE("unit_profile: thousands of distinct values are all counted") {
     CHECK(v.count == 3);
   }
   CHECK(top == tied);
+}
+
+TEST_CASE("unit_profile: a typed column is profiled as its canonical text") {
+  // Design §3: a typed value's canonical text is the integer in decimal, the
+  // decimal at the column's scale, the date in ISO 8601 (day 0 = 1970-01-01,
+  // day 19723 = 2024-01-01: 54 years of 365 days plus 13 leap days, from the
+  // Gregorian rule), and true/false.
+  struct Case {
+    Type type;
+    int scale;
+    std::vector<std::optional<int64_t>> values;
+    std::vector<std::optional<std::string>> canonical;
+  };
+  const std::vector<Case> cases = {
+      {Type::integer, 0, {42, std::nullopt, -7, 42}, {"42", std::nullopt, "-7", "42"}},
+      {Type::decimal, 2, {1234, -5, std::nullopt, 0}, {"12.34", "-0.05", std::nullopt, "0.00"}},
+      {Type::date, 0, {0, 19723, 19723, std::nullopt}, {"1970-01-01", "2024-01-01", "2024-01-01", std::nullopt}},
+      {Type::boolean, 0, {1, 0, 1, 1}, {"true", "false", "true", "true"}},
+  };
+  for (const Case& c : cases) {
+    CAPTURE(type_name(c.type));
+    const TableProfile typed = profile_table(typed_table(c.type, c.scale, c.values));
+    const ColumnProfile expected = single(c.canonical);
+    REQUIRE(typed.columns.size() == 1);
+    const ColumnProfile& got = typed.columns[0];
+    CHECK(got.type == expected.type);
+    CHECK(got.nulls == expected.nulls);
+    CHECK(got.distinct == expected.distinct);
+    CHECK(got.min == expected.min);
+    CHECK(got.max == expected.max);
+    CHECK(got.mean == expected.mean);
+    CHECK(values_of(got.top_values) == values_of(expected.top_values));
+    CHECK(values_of(got.shapes) == values_of(expected.shapes));
+    CHECK(got.length_max == expected.length_max);
+  }
+  const ColumnProfile date = profile_table(typed_table(Type::date, 0, cases[2].values)).columns[0];
+  CHECK(date.type == Type::date);
+  CHECK(date.min == std::optional<std::string>("1970-01-01"));
+  CHECK(date.max == std::optional<std::string>("2024-01-01"));
 }
 
 }  // TEST_SUITE

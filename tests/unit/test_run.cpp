@@ -460,3 +460,25 @@ TEST_CASE("unit_run: CSVW date patterns, column names and required columns") {
   na_marker.observe(table);
   CHECK(na_marker.required() == std::vector<bool>{true, true, false});
 }
+
+TEST_CASE("unit_run: the rejects cap counts rows or a share of the rows read") {
+  // The rule documented for input.max_rejects in the recipe JSON Schema:
+  // a count allows that many rows; a share P% allows P% of the rows read,
+  // and "more than" the cap stops the run.
+  const RejectCap two = RejectCap::parse("2").value();
+  CHECK_FALSE(two.exceeded(2, 10));
+  CHECK(two.exceeded(3, 10));
+  const RejectCap share = RejectCap::parse("1%").value();
+  CHECK_FALSE(share.exceeded(2, 250));  // 2.5 allowed
+  CHECK(share.exceeded(3, 250));
+  CHECK(RejectCap::of(RecipeInput{}).value().exceeded(1, 1000));  // none given: none allowed
+  for (const char* bad : {"", "-1", "1.5", "101%", "x%", "+2%"}) {
+    CAPTURE(bad);
+    CHECK_FALSE(RejectCap::parse(bad).ok());
+  }
+  const Error e = two.error("in.csv", 3, 10, RemovedRow{7, "input: no"});
+  CHECK(e.message == "3 rows rejected, more than the cap of 2 (--max-rejects or input.max_rejects); "
+                     "no output written. First: line 7: input: no");
+  CHECK(share.error("in.csv", 3, 250, RemovedRow{7, "x"}).message.find("cap of 1% of 250 rows read") !=
+        std::string::npos);
+}

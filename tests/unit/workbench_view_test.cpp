@@ -206,6 +206,33 @@ TEST_CASE("unit_workbench_exports: a recipe that does not fit is not exported") 
   CHECK(stop->step_problem(0)->step == std::optional<size_t>(0));
 }
 
+TEST_CASE("unit_workbench_exports: the cleaned file obeys input.max_rejects as tamis run does") {
+  // Two of three values do not fit the declared integer type: `tamis run`
+  // rejects both rows and, over the cap, writes nothing (design §5).
+  auto doc = document_of("a\n1\nx\ny\n");
+  auto recipe_with_cap = [](const std::string& cap) {
+    return R"({"tamis_recipe": 1, "input": {"columns": [{"name": "a", "type": "integer"}], "max_rejects": )" + cap +
+           R"(}, "steps": []})";
+  };
+  REQUIRE(doc->open_recipe(recipe_with_cap("1"), "r.json"));
+  REQUIRE(doc->input_rejected_rows() == 2);
+  auto over = export_cleaned(*doc);
+  REQUIRE_FALSE(over.ok());
+  // The message `tamis run r.json t.csv -o out.csv` printed for this recipe
+  // and file (before its hint about --rejects).
+  CHECK(over.error().message ==
+        "2 rows rejected, more than the cap of 1 (--max-rejects or input.max_rejects); no output written. "
+        "First: line 3: input: column 'a' is declared integer in input.columns; 'x' is not");
+  CHECK(over.error().file == "test.csv");
+
+  REQUIRE(doc->open_recipe(recipe_with_cap("\"60%\""), "r.json"));  // 2 > 1.8 of 3 rows read
+  CHECK_FALSE(export_cleaned(*doc).ok());
+  REQUIRE(doc->open_recipe(recipe_with_cap("\"70%\""), "r.json"));  // 2 <= 2.1
+  auto within = export_cleaned(*doc);
+  REQUIRE(within.ok());
+  CHECK(*within == "a\n1\n");
+}
+
 TEST_CASE("unit_workbench_view: the sliced sort of 150,000 rows equals std::stable_sort") {
   // Keys from a fixed linear congruential generator (Knuth's MMIX constants,
   // from memory): few distinct values, so ties and NULLs are frequent.

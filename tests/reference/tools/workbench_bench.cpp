@@ -11,6 +11,7 @@
 #include <fstream>
 #include <iostream>
 #include <sstream>
+#include <string_view>
 
 #include "data_view.hpp"
 #include "document.hpp"
@@ -28,19 +29,22 @@ double ms_since(Clock::time_point start) {
   return std::chrono::duration<double, std::milli>(Clock::now() - start).count();
 }
 
-// Peak resident memory of this process (Linux /proc), in MiB.
-double peak_rss_mib() {
+// Resident memory of this process (Linux /proc), in MiB: now (VmRSS) or
+// at its peak so far (VmHWM).
+double rss_mib(std::string_view field) {
   std::ifstream status("/proc/self/status");
   std::string line;
   while (std::getline(status, line))
-    if (line.rfind("VmHWM:", 0) == 0) {
-      std::istringstream in(line.substr(6));
+    if (line.rfind(field, 0) == 0) {
+      std::istringstream in(line.substr(field.size()));
       double kib = 0;
       in >> kib;
       return kib / 1024.0;
     }
   return 0;
 }
+double peak_rss_mib() { return rss_mib("VmHWM:"); }
+double rss_now_mib() { return rss_mib("VmRSS:"); }
 
 void figure(const std::string& what, double value, const std::string& unit) {
   std::cout << what << ": " << value << ' ' << unit << '\n';
@@ -88,6 +92,7 @@ int main(int argc, char** argv) {
   figure("rows", static_cast<double>(doc.table_at(0).row_count()), "");
   figure("table memory", static_cast<double>(doc.table_at(0).memory_bytes()) / (1024.0 * 1024.0), "MiB");
   figure("peak RSS after load", peak_rss_mib(), "MiB");
+  figure("RSS after load", rss_now_mib(), "MiB");
 
   if (argc == 3) {
     std::ifstream in(argv[2], std::ios::binary);
@@ -139,6 +144,7 @@ int main(int argc, char** argv) {
   figure("trim apply (sliced)", total, "ms");
   figure("trim apply, longest slice", longest, "ms");
   figure("peak RSS after trim", peak_rss_mib(), "MiB");
+  figure("RSS after trim", rss_now_mib(), "MiB");
 
   // map_values on the second text column: its second most frequent value
   // becomes its most frequent one.
@@ -160,6 +166,8 @@ int main(int argc, char** argv) {
   apply = doc.make_apply_job();
   run_sliced(*apply, total);
   figure("map_values add + apply (sliced)", ms_since(start), "ms");
+  figure("RSS after map_values", rss_now_mib(), "MiB");
+  figure("peak RSS after map_values", peak_rss_mib(), "MiB");
 
   const DateFormat iso = DateFormat::compile("%Y-%m-%d").value();
   RowViewJob sort(doc.result(), {}, {{column, false}}, iso);
