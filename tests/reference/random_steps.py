@@ -82,6 +82,7 @@ def step_cases(rng, cols, in_set_values):
         ('cast', {'op': 'cast', 'column': code, 'to': 'integer', 'on_error': 'null'}),
         ('cast typed', {'op': 'cast', 'column': rng.choice(cols), 'on_error': rng.choice(['null', 'keep']),
                         'to': rng.choice(['integer', 'date', 'boolean'])}),
+        ('cast date', {'op': 'cast', 'column': rng.choice(cols), 'to': 'date', 'on_error': rng.choice(['null', 'keep'])}),
         ('cast decimal', {'op': 'cast', 'column': rng.choice(cols), 'to': 'decimal', 'scale': rng.choice([0, 2]),
                           'on_error': 'null'}),
         ('drop_columns', {'op': 'drop_columns', 'columns': [code]}),

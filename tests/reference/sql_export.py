@@ -114,7 +114,7 @@ MUST_EXPORT = {
     'derive_column integer': ['duckdb', 'postgres', 'mysql'], 'parse_date': DIALECTS,
     'map_values ignore_case': DIALECTS, 'parse_number': ['duckdb', 'postgres', 'mysql'],
     'parse_number reject': ['duckdb', 'postgres', 'mysql'], 'split_column': DIALECTS,
-    'collapse_spaces': DIALECTS,
+    'collapse_spaces': DIALECTS, 'cast date': DIALECTS,
 }
 
 
@@ -330,28 +330,23 @@ def run_sqlite_shell(work, script, query):
         con.close()
 
 
-def check_load_scripts(work, servers, rng, counts):
-    """--load-script: each dialect's own statements load the CSV file (quoted
-    fields with commas, quotes and line breaks, empty fields) into the raw
-    table, and the script's result equals `tamis run` on that file."""
+def compare_loaded(work, servers, cases, counts):
+    """Each case (label, recipe, header, rows) as a CSV file loaded by each
+    dialect's own load statements; every result must equal `tamis run`."""
     duck_cases, duck_labels = [], []
-    for n in range(6):
-        steps = [{'op': 'trim', 'columns': '*'}, {'op': 'to_null', 'columns': ['note'], 'values': ['N/A'], 'blank': True},
-                 {'op': 'deduplicate', 'columns': ['site'], 'keep': 'last'}]
-        recipe = recipe_of(steps[:n % 3 + 1])
-        rows = messy_table(rng, 50)
+    for n, (label, recipe, header, rows) in enumerate(cases):
         recipe_path = os.path.join(work, 'load_recipe.json')
         csv_path = os.path.join(work, 'load_%d.csv' % n)
         with open(recipe_path, 'w', encoding='utf-8') as f:
             json.dump(recipe, f, ensure_ascii=False)
-        write_csv(csv_path, COLUMNS, rows)
+        write_csv(csv_path, header, rows)
         os.chmod(csv_path, 0o644)  # the PostgreSQL server reads it as user postgres
         expected = tamis_run(work, recipe_path, csv_path)
-        query = 'SELECT ' + ', '.join('"%s"' % c for c in COLUMNS) + ' FROM tamis_clean ORDER BY tamis_line'
+        query = 'SELECT ' + ', '.join('"%s"' % c for c in header) + ' FROM tamis_clean ORDER BY tamis_line'
         for dialect in DIALECTS:
             p = subprocess.run([TAMIS, 'sql', recipe_path, '--dialect', dialect, '--load-script', csv_path],
                                capture_output=True, text=True)
-            where = 'load script %d on %s' % (n, dialect)
+            where = '%s on %s' % (label, dialect)
             if p.returncode != 0:
                 fail(where + ': tamis sql exit %d: %s' % (p.returncode, p.stderr.strip()))
                 continue
@@ -368,10 +363,41 @@ def check_load_scripts(work, servers, rng, counts):
     for (where, expected), got in zip(duck_labels, duckdb_batch(duck_cases)):
         if got is not None:
             compare(where, expected, got)
+
+
+def check_load_scripts(work, servers, rng, counts):
+    """--load-script: each dialect's own statements load the CSV file (quoted
+    fields with commas, quotes and line breaks, empty fields) into the raw
+    table, and the script's result equals `tamis run` on that file."""
+    steps = [{'op': 'trim', 'columns': '*'}, {'op': 'to_null', 'columns': ['note'], 'values': ['N/A'], 'blank': True},
+             {'op': 'deduplicate', 'columns': ['site'], 'keep': 'last'}]
+    compare_loaded(work, servers, [('load script %d' % n, recipe_of(steps[:n % 3 + 1]), COLUMNS, messy_table(rng, 50))
+                                   for n in range(6)], counts)
     p = subprocess.run([TAMIS, 'sql', os.path.join(work, 'load_recipe.json'), '--dialect', 'spark', '--load-script',
                         'x.csv'], capture_output=True, text=True)
     if p.returncode != 2 or 'Spark SQL has no statement' not in p.stderr:
         fail('--load-script for spark: expected the documented refusal, got exit %d: %s' % (p.returncode, p.stderr))
+
+
+# Input columns named like the helper columns steps add beside them (in any
+# ASCII case, as SQLite and MySQL compare names): the helpers must take other
+# names, and every result must still equal `tamis run`.
+HELPER_COLUMNS = ['tamis_folded_1_0', 'TAMIS_INNER_0', 'tamis_copy', 'tamis_run']
+
+
+def check_helper_names(work, servers, rng, counts):
+    a, b, c, d = HELPER_COLUMNS
+    steps = [{'op': 'collapse_spaces', 'columns': [a, b]},
+             {'op': 'map_values', 'column': a, 'ignore_case': True, 'map': {'straße': 'Street', 'oak': 'Oak'}},
+             {'op': 'deduplicate', 'columns': [a, c], 'keep': 'last'},
+             {'op': 'carry_forward', 'column': d, 'group_by': [c]},
+             {'op': 'fill_from_group', 'column': b, 'keys': [a]}]
+    cases = []
+    for n, step in enumerate(steps):
+        recipe = recipe_of([step])
+        recipe['input']['columns'] = [{'name': name, 'type': 'text'} for name in HELPER_COLUMNS]
+        cases.append(('helper names %d (%s)' % (n, step['op']), recipe, HELPER_COLUMNS, messy_table(rng, 50)))
+    compare_loaded(work, servers, cases, counts)
 
 
 WARNING = re.compile(r'^-- Step (\d+) \((\w+)\):.*\n(?:-- Note:.*\n)?-- WARNING: approximate', re.M)
@@ -625,6 +651,7 @@ def main():
 
         t = time.monotonic()
         check_load_scripts(work, servers, rng, counts)
+        check_helper_names(work, servers, rng, counts)
         timings['load scripts'] = time.monotonic() - t
 
         t = time.monotonic()

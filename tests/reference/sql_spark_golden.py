@@ -56,11 +56,11 @@ EXPORTED = {
     'split_column': {'op': 'split_column', 'column': 'site', 'separator': ' ', 'into': ['a', 'b', 'c']},
     'cast_integer': {'op': 'cast', 'column': 'note', 'to': 'integer', 'on_error': 'keep'},
     'cast_boolean': {'op': 'cast', 'column': 'note', 'to': 'boolean', 'on_error': 'reject'},
+    'cast_date': {'op': 'cast', 'column': 'note', 'to': 'date'},
 }
 REFUSED = {
     'normalize_unicode': {'op': 'normalize_unicode', 'columns': ['site'], 'form': 'NFC'},
     'parse_number_data_scale': {'op': 'parse_number', 'column': 'note'},
-    'cast_date': {'op': 'cast', 'column': 'note', 'to': 'date'},
     'replace_text_regex': {'op': 'replace_text', 'columns': ['site'], 'find': 'a+', 'replace': 'b', 'match': 'regex'},
     'change_case': {'op': 'change_case', 'columns': ['site'], 'to': 'upper'},
 }

@@ -104,6 +104,31 @@ TEST_CASE("unit_sql_export: case folding for an alphabet replaces exactly the ch
   CHECK(!sql::case_folding_for(U"sT").has_value());  // T is not folded text
 }
 
+TEST_CASE("unit_sql_export: one-character replacements that cannot chain become one translate call") {
+  // CaseFolding.txt (Unicode 15), as above, and FB05 ﬅ F -> 0073 0074, FB06 ﬆ F -> 0073 0074:
+  // S, T and ſ fold to one letter each, the others to two.
+  const auto folding = sql::case_folding_for(U"st");
+  REQUIRE(folding.has_value());
+  CHECK(sql::replace_each(Dialect::postgres, "x", *folding) ==
+        "replace(replace(replace(replace(translate(x, 'STſ', 'sts'), 'ß', 'ss'), 'ẞ', 'ss'), 'ﬅ', 'st'), 'ﬆ', 'st')");
+  // a -> b then b -> c replaces an a by c in turn; at once it would give b.
+  CHECK(sql::replace_each(Dialect::duckdb, "x", {{"a", "b"}, {"b", "c"}}) == "replace(replace(x, 'a', 'b'), 'b', 'c')");
+  CHECK(sql::replace_each(Dialect::mysql, "x", {{"a", "b"}, {"c", "d"}}) == "REPLACE(REPLACE(x, 'a', 'b'), 'c', 'd')");
+}
+
+TEST_CASE("unit_sql_export: helper columns never take an input column's name") {
+  const Recipe recipe = recipe_with(R"([{"op": "deduplicate", "columns": "*"}])");
+  SqlExportOptions options;
+  options.dialect = Dialect::sqlite;
+  Recipe clashing = recipe;
+  clashing.input.columns[0].name = "TAMIS_COPY";
+  auto plain = export_sql(recipe, options), renamed = export_sql(clashing, options);
+  REQUIRE(plain.ok());
+  REQUIRE(renamed.ok());
+  CHECK(plain->find("WHERE tamis_copy = 1") != std::string::npos);
+  CHECK(renamed->find("WHERE tamis_copy_ = 1") != std::string::npos);
+}
+
 TEST_CASE("unit_sql_export: on_error reject stops the script, unless the recipe allows rejected rows") {
   const std::string steps = R"([{"op": "parse_number", "column": "site", "scale": 1, "on_error": "reject"}])";
   SqlExportOptions options;

@@ -410,7 +410,7 @@ TEST_CASE("unit_steps_typed: SQL support is declared per dialect") {
     CHECK(support(parse_number(), d) == SqlSupport::unsupported);
     CHECK(support(parse_number({{"scale", 2}}), d) == (regex ? SqlSupport::exact : SqlSupport::unsupported));
     CHECK(support(cast("integer"), d) == (regex ? SqlSupport::exact : SqlSupport::unsupported));
-    CHECK(support(cast("date"), d) == SqlSupport::unsupported);
+    CHECK(support(cast("date"), d) == SqlSupport::exact);  // read as parse_date reads %Y-%m-%d
     CHECK(support({{"op", "cast"}, {"column", "n"}, {"to", "text"}}, d) == SqlSupport::exact);
   }
 }

@@ -1,11 +1,13 @@
 #include "sql/sql_step.hpp"
 
 #include <algorithm>
+#include <cctype>
 
 namespace tamis {
 
 std::string SqlContext::select_replacing(const std::vector<std::pair<size_t, std::string>>& replaced,
-                                         std::string_view from_clause) const {
+                                         std::string_view from_clause, std::string_view qualifier) const {
+  const std::string prefix = qualifier.empty() ? std::string() : std::string(qualifier) + ".";
   std::string out = "SELECT";
   for (size_t c = 0; c < input.size(); ++c) {
     out += c ? ",\n       " : " ";
@@ -16,10 +18,23 @@ std::string SqlContext::select_replacing(const std::vector<std::pair<size_t, std
         found = true;
         break;
       }
-    if (!found) out += column(c);
+    if (!found) out += prefix + column(c);
   }
-  out += std::string(",\n       ") + line() + "\nFROM ";
+  out += std::string(",\n       ") + prefix + line() + "\nFROM ";
   out += from_clause.empty() ? from : std::string(from_clause);
+  return out;
+}
+
+std::string SqlContext::helper(std::string_view base) const {
+  auto starts = [](std::string_view name, std::string_view prefix) {
+    if (name.size() < prefix.size()) return false;
+    for (size_t i = 0; i < prefix.size(); ++i)
+      if (std::tolower(static_cast<unsigned char>(name[i])) != std::tolower(static_cast<unsigned char>(prefix[i])))
+        return false;
+    return true;
+  };
+  std::string out(base);
+  while (std::any_of(input.begin(), input.end(), [&](const ColumnSchema& c) { return starts(c.name, out); })) out += '_';
   return out;
 }
 
@@ -44,7 +59,7 @@ ReplacedValues replaced_values(const SqlContext& sql, const std::vector<std::str
     const std::vector<std::pair<std::string, std::string>> some(
         pairs.begin() + static_cast<std::ptrdiff_t>(first),
         pairs.begin() + static_cast<std::ptrdiff_t>(std::min(pairs.size(), first + kPerLayer)));
-    const std::string table = std::string(prefix) + "_" + std::to_string(layer);
+    const std::string table = sql.helper(prefix) + "_" + std::to_string(layer);
     std::string select = out.with.empty() ? "WITH " : ",\n";
     select += table + " AS (SELECT *";
     for (size_t k = 0; k < out.results.size(); ++k) {

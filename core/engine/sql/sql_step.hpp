@@ -45,9 +45,15 @@ struct SqlContext {
   std::string key(size_t c) const { return sql::exact_key(dialect, column(c), input[c].type); }
 
   // "SELECT a, <expr> AS b, ..., tamis_line FROM <from>": every column in
-  // order, the replaced ones computed.
+  // order, the replaced ones computed, the others (and the line column)
+  // prefixed with `qualifier.` when one is given (a FROM clause with a join).
   std::string select_replacing(const std::vector<std::pair<size_t, std::string>>& replaced,
-                               std::string_view from_clause = {}) const;
+                               std::string_view from_clause = {}, std::string_view qualifier = {}) const;
+  // `base`, or base followed by as many '_' as make it the start of no input
+  // column's name (ignoring ASCII case, as SQLite and MySQL compare names):
+  // the name of a helper column a step adds beside the input columns, or
+  // the prefix of a family of them, never takes a column's name.
+  std::string helper(std::string_view base) const;
   // The columns (and the line column) as a select list, each prefixed with
   // `qualifier.` when one is given.
   std::string column_list(std::string_view qualifier = {}) const;

@@ -240,12 +240,40 @@ std::string exact_key(Dialect dialect, const std::string& x, Type type) {
   return x;
 }
 
+namespace {
+
+bool one_character(const std::string& text) {
+  size_t i = 0;
+  return !text.empty() && (utf8::next(text, i), i == text.size());
+}
+
+}  // namespace
+
 std::string replace_each(Dialect dialect, const std::string& x,
                          const std::vector<std::pair<std::string, std::string>>& pairs) {
+  const bool translates = dialect == Dialect::postgres || dialect == Dialect::duckdb || dialect == Dialect::spark;
   std::string out = x;
-  for (const auto& [from, to] : pairs)
-    out = std::string(dialect == Dialect::mysql ? "REPLACE(" : "replace(") + out + ", " + literal(dialect, from) +
-          ", " + literal(dialect, to) + ")";
+  for (size_t i = 0; i < pairs.size();) {
+    std::string from, to;  // the run's characters, in order
+    size_t end = i;
+    for (; translates && end < pairs.size(); ++end) {
+      const auto& [f, t] = pairs[end];
+      if (!one_character(f) || !one_character(t) || from.find(t) != std::string::npos ||
+          to.find(f) != std::string::npos || t == f)
+        break;
+      if (from.find(f) != std::string::npos) continue;  // replaced already: the later pair finds none
+      from += f;
+      to += t;
+    }
+    if (end - i > 1) {
+      out = std::string("translate(") + out + ", " + literal(dialect, from) + ", " + literal(dialect, to) + ")";
+      i = end;
+      continue;
+    }
+    out = std::string(dialect == Dialect::mysql ? "REPLACE(" : "replace(") + out + ", " + literal(dialect, pairs[i].first) +
+          ", " + literal(dialect, pairs[i].second) + ")";
+    ++i;
+  }
   return out;
 }
 
@@ -289,6 +317,10 @@ std::optional<std::vector<std::pair<std::string, std::string>>> case_folding_for
     for (const char32_t f : folded) utf8::append(to, f);
     pairs.emplace_back(std::move(from), std::move(to));
   }
+  // The pairs apply in any order (no folded form holds a character that
+  // folding changes); those of one character each go first, so they form
+  // one run for replace_each's translate.
+  std::stable_partition(pairs.begin(), pairs.end(), [](const auto& p) { return one_character(p.second); });
   return pairs;
 }
 
@@ -346,10 +378,16 @@ std::string scaled_number(Dialect dialect, const std::string& plain, int scale, 
                     regex_whole(dialect, std::string("[+-]?0*[0-9]{0,") + std::to_string(integer_digits) + "}(?:\\.[0-9]*)?"));
   const std::string kept =
       regex_first_match(dialect, plain, std::string("^[+-]?[0-9]*(?:\\.[0-9]{0,") + std::to_string(kept_fraction) + "})?");
-  std::string value = std::string("CAST(") + kept + " AS " + decimal_type + "(" +
-                      std::to_string(integer_digits + kept_fraction) + ", " + std::to_string(kept_fraction) + "))";
-  if (hundredths) value = std::string("(") + value + " * 0.01)";
-  const std::string rounded = std::string("ROUND(") + value + ", " + std::to_string(scale) + ")";
+  const std::string type = scale == 0 ? (dialect == Dialect::mysql ? std::string("SIGNED") : std::string("BIGINT"))
+                                      : decimal_type + "(19, " + std::to_string(scale) + ")";
+  // The kept text read as DECIMAL(width, kept_fraction), rounded to the scale.
+  auto rounded = [&](int width) {
+    std::string value = std::string("CAST(") + kept + " AS " + decimal_type + "(" + std::to_string(width) + ", " +
+                        std::to_string(kept_fraction) + "))";
+    if (hundredths) value = std::string("(") + value + " * 0.01)";
+    return std::string("ROUND(") + value + ", " + std::to_string(scale) + ")";
+  };
+  const std::string wide = rounded(integer_digits + kept_fraction);
   // -2^63 and 2^63 - 1 at the scale.
   auto bound = [&](std::string_view magnitude, bool negative) {
     const size_t whole = magnitude.size() - static_cast<size_t>(scale);
@@ -361,11 +399,19 @@ std::string scaled_number(Dialect dialect, const std::string& plain, int scale, 
     }
     return out;
   };
-  const std::string type = scale == 0 ? (dialect == Dialect::mysql ? std::string("SIGNED") : std::string("BIGINT"))
-                                      : decimal_type + "(19, " + std::to_string(scale) + ")";
-  return std::string("CASE WHEN ") + fits + "\n              THEN CASE WHEN " + rounded + " BETWEEN " +
-         bound("9223372036854775808", true) + " AND " + bound("9223372036854775807", false) + "\n                        THEN CAST(" +
-         rounded + " AS " + type + ") END END";
+  std::string converted = std::string("CASE WHEN ") + wide + " BETWEEN " + bound("9223372036854775808", true) + " AND " +
+                          bound("9223372036854775807", false) + "\n                        THEN CAST(" + wide + " AS " +
+                          type + ") END";
+  // DuckDB reads text into a DECIMAL wider than 18 digits (a 128-bit
+  // integer) some thirty times slower than into DECIMAL(18, s), so text
+  // short enough for 18 digits takes the narrow type, whose values always
+  // fit 64 bits at the scale.
+  constexpr int kNarrow = 18;
+  if (dialect == Dialect::duckdb && integer_digits + kept_fraction > kNarrow)
+    converted = std::string("CASE WHEN ") + char_length(dialect, kept) + " <= " + std::to_string(kNarrow - kept_fraction) +
+                "\n                        THEN CAST(" + rounded(kNarrow) + " AS " + type + ")\n                        ELSE " +
+                converted + " END";
+  return std::string("CASE WHEN ") + fits + "\n              THEN " + converted + " END";
 }
 
 std::string same_or_both_null(Dialect dialect, const std::string& a, const std::string& b) {

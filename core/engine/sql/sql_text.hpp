@@ -63,7 +63,12 @@ std::string trim_characters(Dialect dialect, const std::string& x, const std::u3
 std::string exact_key(Dialect dialect, const std::string& x, Type type);
 
 // x with every (from, to) pair replaced in turn: nested REPLACE calls, which
-// in every dialect replace a text exactly, code point by code point.
+// in every dialect replace a text exactly, code point by code point. Where
+// the dialect has translate() (PostgreSQL, DuckDB, Spark), a run of pairs of
+// one character each becomes one translate call when no pair of the run
+// makes a character that another pair of the run replaces: replacing them
+// all at once is then the same as in turn, in one pass over the text
+// instead of one per pair (case folding maps some thirty letters).
 std::string replace_each(Dialect dialect, const std::string& x,
                          const std::vector<std::pair<std::string, std::string>>& pairs);
 
@@ -74,7 +79,8 @@ std::string replace_each(Dialect dialect, const std::string& x,
 // a character never occurs in a folded text, so the value still differs from
 // every folded text of the alphabet, as its full folding would. Nullopt when
 // a character of the alphabet is itself changed by folding (the alphabet is
-// not folded text). Applied with nested REPLACE (replace_each).
+// not folded text). Applied with replace_each; the pairs whose folded form
+// is one character come first.
 std::optional<std::vector<std::pair<std::string, std::string>>> case_folding_for(const std::u32string& alphabet);
 
 // The number of code points of x (LENGTH counts bytes in MySQL).

@@ -63,11 +63,12 @@ class CarryForward final : public Step {
     for (const size_t c : group_by_) groups += sql.key(c) + ", ";
     const std::string x = sql.column(column_);
     const std::string partition = group_by_.empty() ? std::string() : std::string("PARTITION BY ") + groups.substr(0, groups.size() - 2) + " ";
+    const std::string run = sql.helper("tamis_run");
     SqlStepText out;
     out.select = sql.select_replacing(
-        {{column_, std::string("COALESCE(") + x + std::string(", MAX(") + x + std::string(") OVER (PARTITION BY ") + groups + "tamis_run))"}},
+        {{column_, std::string("COALESCE(") + x + std::string(", MAX(") + x + std::string(") OVER (PARTITION BY ") + groups + run + "))"}},
         std::string("(SELECT *,\n             COUNT(") + x + std::string(") OVER (") + partition + std::string("ORDER BY ") + sql.line() +
-            "\n                               ROWS BETWEEN UNBOUNDED PRECEDING AND CURRENT ROW) AS tamis_run\n      FROM " +
+            "\n                               ROWS BETWEEN UNBOUNDED PRECEDING AND CURRENT ROW) AS " + run + "\n      FROM " +
             sql.from + ") AS runs");
     return out;
   }

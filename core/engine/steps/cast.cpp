@@ -3,6 +3,7 @@
 #include "dates.hpp"
 #include "expr/numeric.hpp"
 #include "scalars.hpp"
+#include "sql/sql_dates.hpp"
 #include "sql/sql_step.hpp"
 #include "steps/typed_support.hpp"
 #include "utf8.hpp"
@@ -93,11 +94,14 @@ class Cast final : public Step {
   // decimal through sql::scaled_number (decimal is approximate, as exponent
   // notation such as 1.5E3 is not read there); boolean by the words TRUE,
   // FALSE and UNKNOWN in any ASCII case, in the dialects with a BOOLEAN type.
-  // Not yet: text to date, and decimal to text.
+  // A date is read as parse_date reads %Y-%m-%d, after trimming ASCII spaces,
+  // in every dialect. Not yet: decimal to text.
   SqlSupport sql_support(Dialect dialect) const override {
     const Type from = input_[column_].type;
     if (to_ == Type::text) return from == Type::text || from == Type::integer ? SqlSupport::exact : SqlSupport::unsupported;
-    if (from != Type::text || dialect == Dialect::sqlite) return SqlSupport::unsupported;
+    if (from != Type::text) return SqlSupport::unsupported;
+    if (to_ == Type::date) return SqlSupport::exact;
+    if (dialect == Dialect::sqlite) return SqlSupport::unsupported;
     switch (to_) {
       case Type::integer: return SqlSupport::exact;
       case Type::decimal: return SqlSupport::approximate;
@@ -117,6 +121,10 @@ class Cast final : public Step {
     }
     const std::string trimmed = sql::trim_characters(d, x, U" ", "both");
     if (to_ == Type::boolean) return boolean_sql(sql, trimmed);
+    if (to_ == Type::date)
+      return conversion_sql(sql, column_, sql::date_of(d, trimmed, {"%Y-%m-%d"}),
+                            [&](const std::string& v) { return d == Dialect::sqlite ? v : sql::as_text(d, v); },
+                            on_error_, op());
     const std::string shape = to_ == Type::integer ? std::string("[+-]?[0-9]+")
                                                    : std::string("[+-]?(?:[0-9]+(?:\\.[0-9]*)?|\\.[0-9]+)");
     const std::string converted = std::string("CASE WHEN ") + sql::regex_matches(d, trimmed, sql::regex_whole(d, shape)) +

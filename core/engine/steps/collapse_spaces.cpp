@@ -121,20 +121,22 @@ class CollapseSpaces final : public Step {
       to_space.emplace_back(std::move(one), " ");
     }
     const std::vector<std::pair<std::string, std::string>> halve_16(16, {"  ", " "}), halve_15(15, {"  ", " "});
+    const std::string inner_name = sql.helper("tamis_inner"), spaced_name = sql.helper("tamis_spaced"),
+                      halved_name = sql.helper("tamis_halved");
     std::string inner, spaced, halved;
     std::vector<std::pair<size_t, std::string>> replaced;
     for (const size_t c : columns_) {
       const std::string x = sql.column(c);
-      const std::string k = std::to_string(c);
-      inner += std::string(", ") + sql::trim_characters(d, x, white, "both") + " AS tamis_inner_" + k;
-      spaced += std::string(", ") + sql::replace_each(d, "tamis_inner_" + k, to_space) + " AS tamis_spaced_" + k;
-      halved += std::string(", ") + sql::replace_each(d, "tamis_spaced_" + k, halve_16) + " AS tamis_halved_" + k;
+      const std::string k = std::string("_") + std::to_string(c);
+      inner += std::string(", ") + sql::trim_characters(d, x, white, "both") + " AS " + inner_name + k;
+      spaced += std::string(", ") + sql::replace_each(d, inner_name + k, to_space) + " AS " + spaced_name + k;
+      halved += std::string(", ") + sql::replace_each(d, spaced_name + k, halve_16) + " AS " + halved_name + k;
       const std::string leading = sql::substring(d, x, "1", std::string("length(") + x + ") - length(" +
                                                              sql::trim_characters(d, x, white, "leading") + ")");
       const std::string trailing =
           sql::substring(d, x, std::string("length(") + sql::trim_characters(d, x, white, "trailing") + ") + 1");
-      replaced.emplace_back(c, std::string("CASE WHEN tamis_inner_") + k + " = '' THEN " + x + "\n            ELSE " +
-                                   sql::concat(d, {leading, sql::replace_each(d, "tamis_halved_" + k, halve_15), trailing}) +
+      replaced.emplace_back(c, std::string("CASE WHEN ") + inner_name + k + " = '' THEN " + x + "\n            ELSE " +
+                                   sql::concat(d, {leading, sql::replace_each(d, halved_name + k, halve_15), trailing}) +
                                    " END");
     }
     const std::string from = std::string("(SELECT *") + halved + "\n      FROM (SELECT *" + spaced + "\n            FROM (SELECT *" +

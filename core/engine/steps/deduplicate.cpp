@@ -115,10 +115,11 @@ class Deduplicate final : public Step {
         key = sql::exact_key(d, std::string("LOWER(") + sql.column(c) + ")", Type::text);
       keys += (keys.empty() ? "" : ", ") + key;
     }
+    const std::string copy = sql.helper("tamis_copy");
     SqlStepText out;
     out.select = std::string("SELECT ") + sql.column_list() + std::string("\nFROM (SELECT *,\n             ROW_NUMBER() OVER (PARTITION BY ") + keys +
                  std::string("\n                                ORDER BY ") + sql.line() + (keep_last_ ? " DESC" : "") +
-                 std::string(") AS tamis_copy\n      FROM ") + sql.from + ") AS numbered\nWHERE tamis_copy = 1";
+                 std::string(") AS ") + copy + std::string("\n      FROM ") + sql.from + ") AS numbered\nWHERE " + copy + " = 1";
     if (compare_ == KeyCompare::casefold) out.approximation = "LOWER stands in for Unicode case folding";
     return out;
   }

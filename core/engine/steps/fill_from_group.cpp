@@ -116,23 +116,13 @@ class FillFromGroup final : public Step {
     return Ok{};
   }
 
-  SqlSupport sql_support(Dialect) const override {
-    // A GROUP BY of the keys with COUNT(DISTINCT) = 1, joined back with
-    // IS NOT DISTINCT FROM (<=> in MySQL and Spark, IS in SQLite).
-    return SqlSupport::exact;
-  }
+  SqlSupport sql_support(Dialect) const override { return SqlSupport::exact; }
 
-  // The window's MIN and MAX (compared byte for byte) agree exactly when the
-  // group holds one distinct non-NULL value.
+  // A group holds one distinct non-NULL value exactly when the MIN and MAX of
+  // its values (compared byte for byte) agree.
   Result<SqlStepText> to_sql(const SqlContext& sql) const override {
-    std::string partition;
-    for (const size_t c : keys_) partition += (partition.empty() ? "" : ", ") + sql.key(c);
-    const std::string over = std::string(" OVER (PARTITION BY ") + partition + ")";
-    const std::string x = sql.column(column_), k = sql.key(column_);
     SqlStepText out;
-    out.select = sql.select_replacing(
-        {{column_, std::string("CASE WHEN ") + x + std::string(" IS NULL\n                 AND MIN(") + k + std::string(")") + over + std::string(" = MAX(") + k + std::string(")") + over +
-                       std::string("\n            THEN MAX(") + x + std::string(")") + over + std::string("\n            ELSE ") + x + " END"}});
+    out.select = sql.dialect == Dialect::mysql ? grouped_sql(sql) : window_sql(sql);
     return out;
   }
 
@@ -148,6 +138,43 @@ class FillFromGroup final : public Step {
   size_t column_;
   std::vector<size_t> keys_;
   Schema input_;
+
+  // The MIN and MAX as window aggregates over the group: one sort, and
+  // every row keeps its place.
+  std::string window_sql(const SqlContext& sql) const {
+    std::string partition;
+    for (const size_t c : keys_) partition += (partition.empty() ? "" : ", ") + sql.key(c);
+    const std::string over = std::string(" OVER (PARTITION BY ") + partition + ")";
+    const std::string x = sql.column(column_), k = sql.key(column_);
+    return sql.select_replacing(
+        {{column_, std::string("CASE WHEN ") + x + std::string(" IS NULL\n                 AND MIN(") + k + std::string(")") + over + std::string(" = MAX(") + k + std::string(")") + over +
+                       std::string("\n            THEN MAX(") + x + std::string(")") + over + std::string("\n            ELSE ") + x + " END"}});
+  }
+
+  // MariaDB computes a MIN or MAX window again for every row of its
+  // partition (hours on a million rows with large groups), so there the
+  // single-valued groups come from a GROUP BY, joined back on the group keys
+  // with the NULL-safe <=> (a NULL key is a group of its own, as in tamis
+  // run). The keys stay binary strings on both sides so the join compares
+  // bytes, not the padded collation.
+  std::string grouped_sql(const SqlContext& sql) const {
+    std::string keys, grouping, join;
+    for (size_t i = 0; i < keys_.size(); ++i) {
+      const std::string key = sql.name(std::string("tamis_key_") + std::to_string(i + 1));
+      keys += sql.key(keys_[i]) + " AS " + key + ", ";
+      grouping += (i ? std::string(", ") : std::string()) + key;
+      const std::string row_key = sql::exact_key(sql.dialect, std::string("t.") + sql.column(keys_[i]),
+                                                 sql.input[keys_[i]].type);
+      join += (i ? std::string(" AND ") : std::string()) +
+              sql::same_or_both_null(sql.dialect, row_key, std::string("g.") + key);
+    }
+    const std::string x = sql.column(column_), k = sql.key(column_);
+    const std::string filled = std::string("CASE WHEN t.") + x + " IS NULL THEN g.tamis_value ELSE t." + x + " END";
+    const std::string from = sql.from + " AS t\nLEFT JOIN (SELECT " + keys + "MAX(" + x + ") AS tamis_value\n           FROM " +
+                             sql.from + "\n           GROUP BY " + grouping + "\n           HAVING MIN(" + k + ") = MAX(" + k +
+                             ")) AS g\n       ON " + join;
+    return sql.select_replacing({{column_, filled}}, from, "t");
+  }
 };
 
 }  // namespace

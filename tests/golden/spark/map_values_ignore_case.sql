@@ -15,7 +15,7 @@ FROM `tamis_raw`;
 DROP TABLE IF EXISTS `tamis_clean_step_1`;
 CREATE TABLE `tamis_clean_step_1` AS
 SELECT `site`,
-       CASE replace(replace(replace(replace(replace(replace(replace(replace(replace(replace(replace(replace(replace(replace(replace(`district`, 'A', 'a'), 'E', 'e'), 'F', 'f'), 'M', 'm'), 'N', 'n'), 'O', 'o'), 'R', 'r'), 'S', 's'), 'T', 't'), 'ß', 'ss'), 'ſ', 's'), 'ẞ', 'ss'), 'ﬀ', 'ff'), 'ﬅ', 'st'), 'ﬆ', 'st')
+       CASE replace(replace(replace(replace(replace(translate(`district`, 'AEFMNORSTſ', 'aefmnorsts'), 'ß', 'ss'), 'ẞ', 'ss'), 'ﬀ', 'ff'), 'ﬅ', 'st'), 'ﬆ', 'st')
          WHEN 'strasse' THEN 'Street'
          WHEN 'fenmore' THEN 'Fenmoor'
          ELSE `district` END AS `district`,
