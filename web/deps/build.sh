@@ -1,8 +1,9 @@
 #!/usr/bin/env bash
 # Builds the dependencies of the WebAssembly build and assembles them into one
 # prefix for CMake's TAMIS_WASM_DEPS:
-#   PREFIX/lib/      libicuuc.a libicui18n.a libicudata.a (ICU built by icu.sh)
-#   PREFIX/include/  ICU's headers, and links to the header-only libraries
+#   PREFIX/lib/      libicuuc.a libicui18n.a libicudata.a (ICU built by icu.sh),
+#                    libSDL2.a (sdl2.sh) and libimgui.a (imgui.sh)
+#   PREFIX/include/  ICU's, SDL2's and ImGui's headers, and links to the header-only libraries
 #                    of Debian's -dev packages (date, nlohmann, fast_float,
 #                    doctest, xxhash, CLI11)
 #   PREFIX/cmake/    doctest.cmake and doctestAddTests.cmake from doctest-dev
@@ -92,6 +93,29 @@ build_icu() {
   ICU_DEBIAN_VERSION=$(dpkg-query -W -f='${source:Version}' libicu-dev) "$deps_dir/icu.sh" "$1"
 }
 
+component_dir_sdl2() {
+  local version
+  version=$(debian_version libsdl2-dev)
+  echo "$cache_root/sdl2-$version-$(hash_of "emscripten $(debian_version emscripten)" sdl2.sh)"
+}
+
+build_sdl2() {
+  SDL2_DEBIAN_VERSION=$(dpkg-query -W -f='${source:Version}' libsdl2-dev) "$deps_dir/sdl2.sh" "$1"
+}
+
+# ImGui is compiled against SDL2's headers, so the SDL2 directory is part of its key.
+component_dir_imgui() {
+  local version
+  version=$(dpkg-query -W -f='${source:Version}' libimgui-dev 2>/dev/null) || true
+  [[ -n $version ]] || { log "libimgui-dev is not installed (./dev.sh install installs it)"; exit 1; }
+  echo "$cache_root/imgui-$version-$(hash_of "emscripten $(debian_version emscripten) $1" imgui.sh)"
+}
+
+build_imgui() {
+  IMGUI_DEBIAN_VERSION=$(dpkg-query -W -f='${source:Version}' libimgui-dev) SDL2_PREFIX=$sdl2_dir \
+    "$deps_dir/imgui.sh" "$1"
+}
+
 # Header-only libraries come straight from Debian's -dev packages.
 header_links=(
   /usr/include/date:libhowardhinnant-date-dev
@@ -105,11 +129,12 @@ header_links=(
 doctest_cmake_dir=/usr/lib/cmake/doctest
 
 assemble_prefix() {
-  local prefix=$1 icu_dir=$2 entry path package
+  local prefix=$1 icu_dir=$2 sdl2_dir=$3 imgui_dir=$4 entry path package
   rm -rf "${prefix:?}/include" "${prefix:?}/lib" "${prefix:?}/cmake" "${prefix:?}/.complete"
   mkdir -p "$prefix/include" "$prefix/lib" "$prefix/cmake"
   ln -s "$icu_dir/include/unicode" "$prefix/include/unicode"
-  ln -s "$icu_dir"/lib/*.a "$prefix/lib/"
+  ln -s "$icu_dir"/lib/*.a "$sdl2_dir/lib/libSDL2.a" "$imgui_dir/lib/libimgui.a" "$prefix/lib/"
+  ln -s "$sdl2_dir/include/SDL2" "$imgui_dir/include/imgui" "$prefix/include/"
   for entry in "${header_links[@]}"; do
     path=${entry%%:*}
     package=${entry#*:}
@@ -124,14 +149,18 @@ assemble_prefix() {
 }
 
 main() {
-  local icu_dir prefix
+  local icu_dir imgui_dir prefix
   icu_dir=$(component_dir_icu)
   ensure_component icu "$icu_dir" build_icu
+  sdl2_dir=$(component_dir_sdl2)
+  ensure_component sdl2 "$sdl2_dir" build_sdl2
+  imgui_dir=$(component_dir_imgui "$sdl2_dir")
+  ensure_component imgui "$imgui_dir" build_imgui
 
   # doctest-dev's version is in the key because its CMake files are copied, not linked.
-  prefix=${1:-$cache_root/prefix-$(hash_of "$icu_dir doctest-dev $(debian_version doctest-dev)" build.sh)}
+  prefix=${1:-$cache_root/prefix-$(hash_of "$icu_dir $sdl2_dir $imgui_dir doctest-dev $(debian_version doctest-dev)" build.sh)}
   if [[ $# -gt 0 || ! -f $prefix/.complete ]]; then
-    assemble_prefix "$prefix" "$icu_dir"
+    assemble_prefix "$prefix" "$icu_dir" "$sdl2_dir" "$imgui_dir"
   fi
   echo "$prefix"
 }
