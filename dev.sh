@@ -2,10 +2,11 @@
 # One entry point for developers and CI on Debian 12:
 #   ./dev.sh demo    install what is missing, build, run the CLI on the demo data
 #   ./dev.sh test    install what is missing, build and run every test suite
-#                    (native, WebAssembly under node, ASan/UBSan + fuzzers)
+#                    (native; WebAssembly: the page tamis.html in Chromium and
+#                    the engine under node; ASan/UBSan + fuzzers)
 #   ./dev.sh build   install what is missing, native build only
 #   ./dev.sh install install everything `test` needs, build nothing
-# `./dev.sh test native|wasm|asan|fuzz ...` runs only the named test suites.
+# `./dev.sh test native|web|asan|fuzz ...` runs only the named test suites.
 # Environment: TAMIS_JOBS (default 2), TAMIS_FUZZ_SECONDS (default 60, shared
 # by all fuzzers), TAMIS_WASM_CACHE (see web/deps/build.sh).
 set -euo pipefail
@@ -242,10 +243,10 @@ suite_native() {
   run_phase native-tests run_ctest build
 }
 
-suite_wasm() {
-  run_phase wasm-deps wasm_deps
-  run_phase wasm-build wasm_build
-  run_phase wasm-tests run_ctest build-wasm
+suite_web() {
+  run_phase web-deps wasm_deps
+  run_phase web-build web_build
+  run_phase web-tests run_ctest build-web
 }
 
 suite_asan() {
@@ -260,12 +261,13 @@ suite_fuzz() {
   run_phase fuzz run_fuzzers
 }
 
-wasm_build() {
-  # emcmake's default emulator adds --experimental-wasm-threads, which node 20 rejects.
-  # The parity test compares the wasm engine's outputs with the native build's driver.
-  emcmake cmake -S . -B build-wasm -G Ninja -DCMAKE_BUILD_TYPE=Release -DTAMIS_WASM_DEPS="$wasm_prefix" \
-    -DCMAKE_CROSSCOMPILING_EMULATOR="$(command -v node)" -DTAMIS_NATIVE_BUILD="$repo/build"
-  cmake --build build-wasm -j"$jobs"
+# The `web` preset (README): the page build/tamis.html plus the engine's unit
+# tests under node. The browser tests compare the page's downloads with the
+# native CLI, so the native suite runs first.
+web_build() {
+  cmake --preset web -DTAMIS_WASM_DEPS="$wasm_prefix" -DTAMIS_NATIVE_BUILD="$repo/build"
+  cmake --build --preset web -j"$jobs"
+  ls -l build-web/tamis.html
 }
 
 asan_build() {
@@ -353,10 +355,10 @@ case $command in
   test)
     selected_suites=("$@")
     for suite in "${selected_suites[@]}"; do
-      [[ $suite == native || $suite == wasm || $suite == asan || $suite == fuzz ]] || { usage >&2; exit 2; }
+      [[ $suite == native || $suite == web || $suite == asan || $suite == fuzz ]] || { usage >&2; exit 2; }
     done
     run_phase install install_for_test
-    for suite in native wasm asan fuzz; do
+    for suite in native web asan fuzz; do
       if want_suite "$suite"; then
         run_suite "$suite"
       fi
