@@ -75,7 +75,11 @@ function startServer(htmlFile) {
       const base = "http://127.0.0.1:" + server.address().port;
       const received = (line) => log.includes(line) ? Promise.resolve()
         : withHangGuard(new Promise((done) => waiters.push({ line, resolve: done })), "the server to receive " + line);
-      resolve({ base, log, received, close: () => new Promise((done) => server.close(done)) });
+      resolve({ base, log, received, close: () => new Promise((done) => {
+        // Idle keep-alive connections would hold the server (and the test) open.
+        server.close(done);
+        server.closeAllConnections();
+      }) });
     });
   });
 }
