@@ -65,6 +65,8 @@ struct Shell {
   double reading_done = 0, reading_total = 0;
   bool reading_cancelled = false;
   bool first_frame = true;
+  bool table_seen = false;
+  bool was_busy = false;
 };
 
 Shell* shell = nullptr;
@@ -98,6 +100,18 @@ void answer_actions() {
     s.actions.pop_front();
     s.running_status = s.workbench->run_action(s.running->line);
   }
+}
+
+// Milestones for benchmarks, in ms since the page started loading (the
+// desktop's --timings prints the same ones).
+void log_timings() {
+  Shell& s = *shell;
+  const bool table = s.workbench->showing_table();
+  if (table && !s.table_seen) std::printf("TAMIS_TIMING table-shown %.0f\n", emscripten_get_now());
+  s.table_seen = table;
+  const bool busy = s.workbench->busy();
+  if (s.was_busy && !busy) std::printf("TAMIS_TIMING work-done %.0f\n", emscripten_get_now());
+  s.was_busy = busy;
 }
 
 void draw_reading_progress() {
@@ -146,6 +160,7 @@ void frame() {
     s.first_frame = false;
     std::puts("TAMIS_READY");
   }
+  log_timings();
 }
 
 }  // namespace

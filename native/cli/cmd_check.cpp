@@ -5,6 +5,7 @@
 #include "dates.hpp"
 #include "input_check.hpp"
 #include "progress.hpp"
+#include "run_report.hpp"
 #include "run_support.hpp"
 
 namespace tamis::cli {

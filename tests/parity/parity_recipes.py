@@ -64,7 +64,7 @@ def typed_cases(rng):
             'planted_count BETWEEN %d AND %d' % (low, low + rng.randint(0, 400)), 'planted_count NOT IN (0, 368, 451)',
             'planted_count * 2 - 10 >= %d OR planted_count IS NULL' % low])}),
         ({'survival_pct'}, {'op': 'drop_rows', 'where': rng.choice([
-            'survival_pct < %d.5' % rng.randint(0, 90), 'ABS(survival_pct - 50) <= 10', 'survival_pct IS NULL',
+            'survival_pct < %d.5 AND survival_pct <> 50' % rng.randint(0, 90), 'ABS(survival_pct - 50) <= 10', 'survival_pct IS NULL',
             'ROUND(survival_pct, -1) = 40'])}),
         ({'planted_on'}, {'op': 'keep_rows', 'where': rng.choice([
             "planted_on >= DATE '2022-01-01'", "planted_on < '2021-06-30' OR planted_on IS NULL",
