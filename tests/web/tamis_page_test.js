@@ -74,11 +74,11 @@ describe(`tamis.html from ${origin}`, () => {
     browser = await harness.launchChromium();
   });
   afterEach(async () => {
-    if (record) await record.context.close();
+    if (record) await harness.withHangGuard(record.context.close(), "the browser context to close");
     record = undefined;
   });
   after(async () => {
-    if (browser) await browser.close();
+    if (browser) await harness.withHangGuard(browser.close(), "the browser to close");
     if (server) await server.close();
     fs.rmSync(work, { recursive: true, force: true });
   });
@@ -225,6 +225,9 @@ describe(`tamis.html from ${origin}`, () => {
     }, probe);
     await sent;
     await server.received("GET /probe?control=1");
+    // Closing the context while the page is still navigating away from the
+    // workbench took minutes here (and past CTest's timeout on CI).
+    await record.page.waitForURL(probe, { waitUntil: "load" });
     const requestFindings = harness.unexpectedRequests(record);
     assert.ok(requestFindings.includes("browser requested " + probe), JSON.stringify(requestFindings));
     assert.ok(requestFindings.includes("server received GET /probe?control=1"), JSON.stringify(requestFindings));
