@@ -10,6 +10,10 @@
 #include <unicode/unistr.h>
 #include <xxhash.h>
 
+#ifdef __EMSCRIPTEN__
+#include <emscripten.h>
+#endif
+
 #include "steps/typed_support.hpp"
 #include "utf8.hpp"
 
@@ -186,8 +190,21 @@ std::string describe_key(std::string_view key, const Schema& schema, std::span<c
 
 uint64_t default_key_hash(std::string_view key) { return XXH3_64bits(key.data(), key.size()); }
 
+// The browser page is built without a file system (-sFILESYSTEM=0, so the
+// Emscripten runtime has no FS object): a temporary file there would write to
+// nowhere. Its tables are in memory already, and the page's check on opening
+// a file counts the keys, so they stay in memory too.
+static bool can_make_temporary_files() {
+#ifdef __EMSCRIPTEN__
+  return EM_ASM_INT({ return typeof FS !== 'undefined' ? 1 : 0; }) != 0;
+#else
+  return true;
+#endif
+}
+
 RowIndexTuning default_row_index_tuning() {
   RowIndexTuning tuning;
+  if (!can_make_temporary_files()) tuning.memory_budget = SIZE_MAX;
   if (const char* budget = std::getenv("TAMIS_DEDUPLICATE_MEMORY")) {
     char* end = nullptr;
     const unsigned long long bytes = std::strtoull(budget, &end, 10);
