@@ -9,7 +9,8 @@
 //   5. a table whose duplicate check outgrows the streaming key budget loads;
 //   6. a file over the memory budget gets a message, not a crash;
 //   7. negative control: the network and CSP checks of test 1 do report a
-//      blocked fetch, a blocked image and a real request.
+//      blocked fetch, a blocked image, an uncaught error (which the page
+//      shows in its notice) and a real request.
 // Every test ends with the page-health check of test 1 (requests, CSP
 // violations, uncaught and console errors).
 //
@@ -221,7 +222,13 @@ describe(`tamis.html from ${origin}`, () => {
       await record.console.waitFor((l) => l.startsWith("TEST_CSP_VIOLATION") && l.includes(directive),
                                    "the test listener's report of " + directive);
     await record.console.waitForCount((l) => l.startsWith("TAMIS_CSP_VIOLATION"), 2, "two TAMIS_CSP_VIOLATION lines");
+    // An uncaught error (here thrown from a timer, as one from the module's
+    // frame loop would be) is reported by the check and shown to the user.
+    await record.page.evaluate(() => setTimeout(() => { throw new Error("negative control"); }, 0));
+    await record.page.waitForSelector("#tamis-notice:not([hidden])", { timeout: 30000 });
+    assert.match(await record.page.textContent("#tamis-notice"), /tamis stopped .*negative control/);
     const cspFindings = harness.pageFindings(record);
+    assert.ok(cspFindings.some((f) => f.startsWith("uncaught error") && f.includes("negative control")));
     assert.ok(cspFindings.some((f) => f.startsWith("CSP violation (test listener)") && f.includes("connect-src")));
     assert.ok(cspFindings.some((f) => f.startsWith("CSP violation (test listener)") && f.includes("img-src")));
     assert.ok(cspFindings.filter((f) => f.startsWith("CSP violation (page log)")).length >= 2);
