@@ -2,33 +2,9 @@
 
 #include <emscripten.h>
 
-#include <algorithm>
 #include <cstdlib>
-#include <cstring>
-#include <iterator>
 
 namespace tamis::web {
-
-namespace {
-
-class BufferSource final : public ByteSource {
- public:
-  BufferSource(std::shared_ptr<const char> bytes, size_t size) : bytes_(std::move(bytes)), size_(size) {}
-  Result<size_t> read(char* buffer, size_t capacity) override {
-    const size_t n = std::min(capacity, size_ - at_);
-    std::memcpy(buffer, bytes_.get() + at_, n);
-    at_ += n;
-    return n;
-  }
-  std::optional<uint64_t> size() const override { return size_; }
-
- private:
-  std::shared_ptr<const char> bytes_;
-  size_t size_;
-  size_t at_ = 0;
-};
-
-}  // namespace
 
 Result<std::vector<ui::FolderEntry>> WebPlatform::list_folder(const std::string& folder) const {
   return io_error(folder, "a web page cannot list folders; open files through the file picker");
@@ -38,7 +14,7 @@ Result<std::unique_ptr<ByteSource>> WebPlatform::open_for_reading(const std::str
   const auto found = files_.find(path);
   if (found == files_.end())
     return io_error(path, "this file has not been opened in the page; choose it with File > Open file or drop it here");
-  return std::unique_ptr<ByteSource>(std::make_unique<BufferSource>(found->second.bytes, found->second.size));
+  return shared_memory_source(found->second.bytes, found->second.size);
 }
 
 Status WebPlatform::save(const std::string& path, std::string_view bytes) {

@@ -31,19 +31,21 @@ class FileSource final : public ByteSource {
   std::optional<uint64_t> size_;
 };
 
-class StringSource final : public ByteSource {
+// Reads bytes that the source shares with their owner.
+class SharedBytesSource final : public ByteSource {
  public:
-  explicit StringSource(std::string bytes) : bytes_(std::move(bytes)) {}
+  SharedBytesSource(std::shared_ptr<const char> bytes, size_t size) : bytes_(std::move(bytes)), size_(size) {}
   Result<size_t> read(char* buffer, size_t capacity) override {
-    const size_t n = std::min(capacity, bytes_.size() - pos_);
-    std::memcpy(buffer, bytes_.data() + pos_, n);
+    const size_t n = std::min(capacity, size_ - pos_);
+    std::memcpy(buffer, bytes_.get() + pos_, n);
     pos_ += n;
     return n;
   }
-  std::optional<uint64_t> size() const override { return bytes_.size(); }
+  std::optional<uint64_t> size() const override { return size_; }
 
  private:
-  std::string bytes_;
+  std::shared_ptr<const char> bytes_;
+  size_t size_;
   size_t pos_ = 0;
 };
 
@@ -100,7 +102,13 @@ Result<std::unique_ptr<ByteSource>> open_file_source(const std::string& path) {
 }
 
 std::unique_ptr<ByteSource> memory_source(std::string bytes) {
-  return std::make_unique<StringSource>(std::move(bytes));
+  auto owned = std::make_shared<const std::string>(std::move(bytes));
+  const size_t size = owned->size();
+  return shared_memory_source(std::shared_ptr<const char>(owned, owned->data()), size);
+}
+
+std::unique_ptr<ByteSource> shared_memory_source(std::shared_ptr<const char> bytes, size_t size) {
+  return std::make_unique<SharedBytesSource>(std::move(bytes), size);
 }
 
 Result<std::unique_ptr<ByteSink>> open_file_sink(const std::string& path) {

@@ -34,6 +34,9 @@ class ByteSink {
 // "-" is standard input.
 Result<std::unique_ptr<ByteSource>> open_file_source(const std::string& path);
 std::unique_ptr<ByteSource> memory_source(std::string bytes);
+// Reads SIZE bytes kept alive by BYTES, without copying them: a file the
+// browser page read into memory once is opened many times.
+std::unique_ptr<ByteSource> shared_memory_source(std::shared_ptr<const char> bytes, size_t size);
 
 // "-" is standard output. A file is written to a temporary name beside the
 // target and renamed over it on commit, so a failed run never leaves a
