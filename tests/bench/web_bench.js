@@ -6,30 +6,34 @@
 //   load     the `load` action until idle (loading and profiling)
 //   recipe   picking the recipe in the recipe input until idle (replay)
 // It prints every round and the median of each phase. The machine is shared
-// and its speed varies: compare with `tamis-desk --timings` on the same file
-// in the same run, not with figures from another day.
+// and its speed varies, so with --desk the same rounds run the native desktop
+// program too (tamis-desk --timings --script, under xvfb-run with Mesa's
+// software OpenGL, one round after each page round) and the page/desktop
+// ratio of each phase is printed: the reference is measured in the same run.
 //
-// usage: node tests/bench/web_bench.js TAMIS_HTML LARGE.csv [RECIPE.json] [--rounds N]
+// usage: node tests/bench/web_bench.js TAMIS_HTML LARGE.csv [RECIPE.json] [--rounds N] [--desk TAMIS_DESK]
 //   RECIPE defaults to the demo recipe (assets/demo/tree_survey.recipe.json);
 //   a large file with the demo's columns: assets/demo/generate.py --rows N --out-dir DIR
 // Needs playwright-core from tests/web (./dev.sh install, or npm ci in tests/web).
 "use strict";
+const { spawnSync } = require("child_process");
 const fs = require("fs");
+const os = require("os");
 const path = require("path");
 const { parseArgs } = require("util");
 const harness = require("../web/page_harness");
 
 const { values, positionals } = parseArgs({
   allowPositionals: true,
-  options: { rounds: { type: "string", default: "3" } },
+  options: { rounds: { type: "string", default: "3" }, desk: { type: "string" } },
 });
 const [html, large, recipe = path.join(__dirname, "..", "..", "assets", "demo", "tree_survey.recipe.json")] = positionals;
 const rounds = Number(values.rounds);
 if (!html || !large || !(rounds >= 1)) {
-  console.error("usage: node tests/bench/web_bench.js TAMIS_HTML LARGE.csv [RECIPE.json] [--rounds N]");
+  console.error("usage: node tests/bench/web_bench.js TAMIS_HTML LARGE.csv [RECIPE.json] [--rounds N] [--desk TAMIS_DESK]");
   process.exit(2);
 }
-for (const file of [html, large, recipe]) {
+for (const file of [html, large, recipe, ...(values.desk ? [values.desk] : [])]) {
   if (!fs.existsSync(file)) {
     console.error("missing: " + file);
     process.exit(2);
@@ -63,6 +67,33 @@ async function round(browser, server) {
   return times;
 }
 
+// One scripted desktop session with the same phases: the first screen, then
+// the open, load and open-recipe actions, as tamis-desk --timings reports them.
+function deskRound() {
+  const work = fs.mkdtempSync(path.join(os.tmpdir(), "tamis-web-bench-"));
+  try {
+    const script = path.join(work, "actions.txt");
+    fs.writeFileSync(script, ["open " + path.resolve(large), "load", "open-recipe " + path.resolve(recipe), ""].join("\n"));
+    const run = spawnSync("xvfb-run", ["-a", "-s", "-screen 0 1280x800x24", values.desk, "--scale", "1",
+                                       "--timings", "--script", script],
+                          { encoding: "utf8", env: { ...process.env, LIBGL_ALWAYS_SOFTWARE: "1" } });
+    if (run.status !== 0) throw new Error("tamis-desk failed (" + run.status + "): " + run.stderr);
+    const ms = (pattern) => {
+      const found = run.stderr.match(pattern);
+      if (!found) throw new Error("tamis-desk --timings printed no line matching " + pattern + ":\n" + run.stderr);
+      return Number(found[1]) / 1000;
+    };
+    return {
+      ready: ms(/first screen after ([0-9.]+) ms/),
+      open: ms(/line 1 \(open\) done in ([0-9.]+) ms/),
+      load: ms(/line 2 \(load\) done in ([0-9.]+) ms/),
+      recipe: ms(/line 3 \(open-recipe\) done in ([0-9.]+) ms/),
+    };
+  } finally {
+    fs.rmSync(work, { recursive: true, force: true });
+  }
+}
+
 function median(list) {
   const sorted = list.slice().sort((a, b) => a - b);
   const mid = sorted.length >> 1;
@@ -77,19 +108,34 @@ function median(list) {
   const server = await harness.startServer(html);
   const browser = await harness.launchChromium();
   const all = [];
+  const desk = [];
+  const show = (times) => phases.map((p) => `${p} ${times[p].toFixed(2)} s`).join(", ");
   try {
     for (let i = 1; i <= rounds; i++) {
       const times = await round(browser, server);
       all.push(times);
-      console.log(`round ${i}: ` + phases.map((p) => `${p} ${times[p].toFixed(2)} s`).join(", "));
+      console.log(`round ${i} page: ` + show(times));
+      if (values.desk) {
+        desk.push(deskRound());
+        console.log(`round ${i} desk: ` + show(desk[desk.length - 1]));
+      }
     }
   } finally {
     await browser.close();
     await server.close();
   }
-  console.log("median: " + phases.map((p) => `${p} ${median(all.map((t) => t[p])).toFixed(2)} s`).join(", "));
+  const medians = (list) => Object.fromEntries(phases.map((p) => [p, median(list.map((t) => t[p]))]));
+  const pageMedian = medians(all);
+  console.log("median page: " + show(pageMedian));
   const openAndLoad = median(all.map((t) => t.open + t.load));
-  console.log(`median open+load: ${openAndLoad.toFixed(2)} s (${(megabytes / openAndLoad).toFixed(1)} MB/s)`);
+  console.log(`median page open+load: ${openAndLoad.toFixed(2)} s (${(megabytes / openAndLoad).toFixed(1)} MB/s)`);
+  if (values.desk) {
+    const deskMedian = medians(desk);
+    console.log("median desk: " + show(deskMedian));
+    const deskOpenAndLoad = median(desk.map((t) => t.open + t.load));
+    console.log("page/desk: " + phases.map((p) => `${p} ${(pageMedian[p] / deskMedian[p]).toFixed(2)}x`).join(", ") +
+                `, open+load ${(openAndLoad / deskOpenAndLoad).toFixed(2)}x`);
+  }
 })().catch((error) => {
   console.error(error);
   process.exit(1);
