@@ -2,7 +2,7 @@
 
 #include <algorithm>
 
-#include "dates.hpp"
+#include "input_check.hpp"
 #include "steps/registry.hpp"
 #include "stepping.hpp"
 
@@ -64,19 +64,6 @@ size_t first_difference(const Recipe& a, const Recipe& b) {
   for (size_t i = 0; i < common; ++i)
     if (without_note(a.steps[i]) != without_note(b.steps[i])) return i;
   return common;
-}
-
-// The table without the listed rows (ascending): kept runs are sliced and
-// appended, so whole untouched chunks stay shared.
-Table without_rows(const Table& table, const std::vector<size_t>& dropped) {
-  Table out;
-  size_t begin = 0;
-  for (size_t row : dropped) {
-    if (row > begin) (void)out.append(slice_rows(table, begin, row));
-    begin = row + 1;
-  }
-  if (table.row_count() > begin || out.column_count() == 0) (void)out.append(slice_rows(table, begin, table.row_count()));
-  return out;
 }
 
 json to_plain_json(const nlohmann::ordered_json& j) { return json::parse(j.dump()); }
@@ -172,52 +159,32 @@ struct Document::State {
     s.input_problems = dialect_problems(d.recipe_.input, d.file_);
     s.input_rejects.clear();
     s.input_rejected = 0;
-    auto keep = check_input_columns(d.recipe_.input, raw.names(), d.file_.name);
-    std::vector<size_t> kept;
-    if (!keep) {
+    auto check = InputCheck::make(d.recipe_.input, raw.names(), d.file_.name);
+    Table table = raw;
+    if (!check) {
       // Shown as far as it goes: the expected columns the file has when the
       // others are to be ignored, else every column.
-      s.input_problems.push_back(StepProblem{std::nullopt, "columns", keep.error().message});
+      s.input_problems.push_back(StepProblem{std::nullopt, "columns", check.error().message});
       const RecipeInput& in = d.recipe_.input;
-      for (size_t c = 0; c < raw.column_count(); ++c)
-        if (in.unknown_columns != "ignore" ||
-            std::any_of(in.columns.begin(), in.columns.end(), [&](const InputColumn& e) { return e.name == raw.name(c); }))
-          kept.push_back(c);
-    } else {
-      kept = std::move(*keep);
-    }
-    Table table = raw;
-    if (kept.size() != raw.column_count()) {
       std::vector<std::string> names;
       std::vector<ColumnPtr> columns;
-      for (size_t c : kept) {
-        names.push_back(raw.name(c));
-        columns.push_back(raw.column_ptr(c));
-      }
-      table = Table::make(std::move(names), std::move(columns), raw.source_lines_ptr()).value();
-    }
-    std::vector<std::pair<size_t, Type>> declared;
-    for (size_t c = 0; c < table.column_count(); ++c)
-      for (const InputColumn& in : d.recipe_.input.columns)
-        if (in.name == table.name(c) && in.type != Type::text) declared.emplace_back(c, in.type);
-    if (!declared.empty()) {
-      static const DateFormat iso = DateFormat::compile("%Y-%m-%d").value();
-      std::vector<size_t> dropped;
-      for (size_t r = 0; r < table.row_count(); ++r)
-        for (const auto& [c, type] : declared) {
-          if (table.column(c).is_null(r)) continue;
-          const std::string_view value = table.column(c).text(r);
-          if (fits_declared_type(type, value, iso)) continue;
-          if (s.input_rejects.size() < ChangeRecord::kListedRows)
-            s.input_rejects.push_back({table.source_line(r), "column '" + table.name(c) + "' is declared " +
-                                                                 std::string(type_name(type)) +
-                                                                 " in input.columns; '" + std::string(value) +
-                                                                 "' is not"});
-          dropped.push_back(r);
-          break;
+      for (size_t c = 0; c < raw.column_count(); ++c)
+        if (in.unknown_columns != "ignore" ||
+            std::any_of(in.columns.begin(), in.columns.end(), [&](const InputColumn& e) { return e.name == raw.name(c); })) {
+          names.push_back(raw.name(c));
+          columns.push_back(raw.column_ptr(c));
         }
-      s.input_rejected = dropped.size();
-      if (!dropped.empty()) table = without_rows(table, dropped);
+      if (names.size() != raw.column_count())
+        table = Table::make(std::move(names), std::move(columns), raw.source_lines_ptr()).value();
+    } else {
+      // The rows tamis run would take out for values not fitting input.columns.
+      std::vector<RemovedRow> failing;
+      auto checked = check->apply(raw, failing);
+      if (checked) table = std::move(*checked);
+      else s.input_problems.push_back(StepProblem{std::nullopt, "columns", checked.error().message});
+      s.input_rejected = failing.size();
+      if (failing.size() > ChangeRecord::kListedRows) failing.resize(ChangeRecord::kListedRows);
+      s.input_rejects = std::move(failing);
     }
     Schema schema = schema_of(table);
     s.stages.assign(1, Stage{std::move(table), s.next_serial++, std::move(schema)});
