@@ -180,6 +180,7 @@ void frame() {
   ImGui_ImplOpenGL3_RenderDrawData(ImGui::GetDrawData());
   if (s.first_frame) {
     s.first_frame = false;
+    std::printf("TAMIS_TIMING first-frame %.0f\n", emscripten_get_now());
     std::puts("TAMIS_READY");
   }
   log_timings();

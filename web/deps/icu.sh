@@ -25,7 +25,7 @@ dpkg-source -x icu_*.dsc icu >/dev/null
 make -f "$deps_dir/Makefile.icu" -j"$jobs" ICU="$work/icu/source" OBJ="$work/obj" OUT="$dest" \
   DATA_ITEMS="$deps_dir/icu-data.txt"
 
-em++ -O2 -std=c++17 -fexceptions -DU_STATIC_IMPLEMENTATION -DU_USING_ICU_NAMESPACE=0 -I"$dest/include" \
+em++ -O2 -std=c++17 -fwasm-exceptions -DU_STATIC_IMPLEMENTATION -DU_USING_ICU_NAMESPACE=0 -I"$dest/include" \
   "$deps_dir/smoke_test.cpp" "$dest/lib/libicui18n.a" "$dest/lib/libicuuc.a" "$dest/lib/libicudata.a" \
   -sSINGLE_FILE=1 -sENVIRONMENT=node -o "$work/smoke_test.js"
 node "$work/smoke_test.js"

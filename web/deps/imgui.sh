@@ -26,7 +26,7 @@ sources=(imgui.cpp imgui_draw.cpp imgui_tables.cpp imgui_widgets.cpp misc/cpp/im
 objects=() compilers=()
 for source in "${sources[@]}"; do
   object=$work/$(basename "$source" .cpp).o
-  em++ -O2 -std=c++17 -fexceptions -DIMGUI_DISABLE_FILE_FUNCTIONS -Iimgui -Iimgui/backends \
+  em++ -O2 -std=c++17 -fwasm-exceptions -DIMGUI_DISABLE_FILE_FUNCTIONS -Iimgui -Iimgui/backends \
     -I"$SDL2_PREFIX/include/SDL2" -c "imgui/$source" -o "$object" &
   compilers+=($!)
   objects+=("$object")
