@@ -3,63 +3,9 @@
 #include <algorithm>
 
 #include "dates.hpp"
+#include "steps/row_filter.hpp"
 
 namespace tamis {
-
-namespace {
-
-// The table without the listed rows (sorted, distinct).
-Result<Table> without_rows(const Table& table, const std::vector<size_t>& dropped) {
-  auto filter = [&](const Column& column) {
-    auto out = std::make_shared<Column>(column.type(), column.scale());
-    size_t next = 0;
-    for (size_t k = 0; k < column.chunk_count(); ++k) {
-      const ColumnChunk& chunk = column.chunk(k);
-      const size_t start = column.chunk_start(k);
-      const size_t end = start + chunk.rows;
-      if (next >= dropped.size() || dropped[next] >= end) {
-        out->append_chunk(column.chunk_ptr(k));
-        continue;
-      }
-      if (column.type() == Type::text) {
-        TextChunkBuilder builder;
-        for (size_t i = 0; i < chunk.rows; ++i) {
-          if (next < dropped.size() && dropped[next] == start + i) {
-            ++next;
-            continue;
-          }
-          if (chunk.is_null(i)) builder.append_null();
-          else builder.append(chunk.text(i));
-        }
-        out->append_chunk(builder.finish());
-        continue;
-      }
-      auto kept = std::make_shared<ColumnChunk>();
-      std::vector<bool> nulls;
-      for (size_t i = 0; i < chunk.rows; ++i) {
-        if (next < dropped.size() && dropped[next] == start + i) {
-          ++next;
-          continue;
-        }
-        kept->numbers.push_back(chunk.numbers[i]);
-        nulls.push_back(chunk.is_null(i));
-      }
-      kept->rows = kept->numbers.size();
-      if (std::find(nulls.begin(), nulls.end(), true) != nulls.end()) {
-        kept->validity.assign((kept->rows + 63) / 64, 0);
-        for (size_t i = 0; i < kept->rows; ++i)
-          if (!nulls[i]) kept->validity[i >> 6] |= uint64_t{1} << (i & 63);
-      }
-      out->append_chunk(std::move(kept));
-    }
-    return ColumnPtr(std::move(out));
-  };
-  std::vector<ColumnPtr> columns;
-  for (size_t c = 0; c < table.column_count(); ++c) columns.push_back(filter(table.column(c)));
-  return Table::make(table.names(), std::move(columns), filter(table.source_lines()));
-}
-
-}  // namespace
 
 Result<InputCheck> InputCheck::make(const RecipeInput& input, const std::vector<std::string>& file_columns,
                                     const std::string& file) {
@@ -78,22 +24,12 @@ Result<InputCheck> InputCheck::make(const RecipeInput& input, const std::vector<
   return check;
 }
 
-Result<Table> InputCheck::apply(const Table& raw, std::vector<RemovedRow>& failing) const {
-  Table kept = raw;
-  if (!all_kept_) {
-    std::vector<std::string> names;
-    std::vector<ColumnPtr> columns;
-    for (size_t c : keep_) {
-      names.push_back(raw.name(c));
-      columns.push_back(raw.column_ptr(c));
-    }
-    auto t = Table::make(std::move(names), std::move(columns), raw.source_lines_ptr());
-    if (!t) return t.take_error();
-    kept = std::move(*t);
-  }
+Table InputCheck::apply(const Table& raw, std::vector<RemovedRow>& failing) const {
+  const Table kept = all_kept_ ? raw : raw.with_columns(keep_);
   if (std::all_of(types_.begin(), types_.end(), [](Type t) { return t == Type::text; })) return kept;
   static const DateFormat iso = DateFormat::compile("%Y-%m-%d").value();
-  std::vector<size_t> dropped;
+  std::vector<uint8_t> keep(kept.row_count(), 1);
+  const size_t failing_before = failing.size();
   for (size_t r = 0; r < kept.row_count(); ++r)
     for (size_t c = 0; c < types_.size(); ++c) {
       if (types_[c] == Type::text || kept.column(c).is_null(r)) continue;
@@ -102,11 +38,11 @@ Result<Table> InputCheck::apply(const Table& raw, std::vector<RemovedRow>& faili
       failing.push_back({kept.source_line(r), "column '" + kept.name(c) + "' is declared " +
                                                   std::string(type_name(types_[c])) + " in input.columns; '" +
                                                   std::string(value) + "' is not"});
-      dropped.push_back(r);
+      keep[r] = 0;
       break;
     }
-  if (dropped.empty()) return kept;
-  return without_rows(kept, dropped);
+  if (failing.size() == failing_before) return kept;
+  return select_rows(kept, keep);
 }
 
 }  // namespace tamis

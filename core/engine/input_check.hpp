@@ -25,7 +25,7 @@ class InputCheck {
   const Schema& schema() const { return schema_; }
   // The rows of `raw` that pass, with the kept columns; failing rows are
   // appended to `failing` with their source line and reason.
-  Result<Table> apply(const Table& raw, std::vector<RemovedRow>& failing) const;
+  Table apply(const Table& raw, std::vector<RemovedRow>& failing) const;
 
  private:
   std::vector<size_t> keep_;

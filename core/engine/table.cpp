@@ -135,6 +135,16 @@ Table Table::with_column(size_t c, ColumnPtr column) const {
   return t;
 }
 
+Table Table::with_columns(const std::vector<size_t>& columns) const {
+  Table t;
+  t.lines_ = lines_;
+  for (const size_t c : columns) {
+    t.names_.push_back(names_[c]);
+    t.columns_.push_back(columns_[c]);
+  }
+  return t;
+}
+
 Status Table::append(const Table& batch) {
   if (columns_.empty() && row_count() == 0) {
     *this = batch;

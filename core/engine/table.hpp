@@ -129,6 +129,8 @@ class Table {
 
   // Copy-on-write: the returned table shares every other column with this one.
   Table with_column(size_t c, ColumnPtr column) const;
+  // The given columns (by position, in that order), shared, with the same rows.
+  Table with_columns(const std::vector<size_t>& columns) const;
 
   // Appends the chunks of a batch with the same column names (no copy of data).
   Status append(const Table& batch);

@@ -166,22 +166,16 @@ struct Document::State {
       // others are to be ignored, else every column.
       s.input_problems.push_back(StepProblem{std::nullopt, "columns", check.error().message});
       const RecipeInput& in = d.recipe_.input;
-      std::vector<std::string> names;
-      std::vector<ColumnPtr> columns;
+      std::vector<size_t> shown;
       for (size_t c = 0; c < raw.column_count(); ++c)
         if (in.unknown_columns != "ignore" ||
-            std::any_of(in.columns.begin(), in.columns.end(), [&](const InputColumn& e) { return e.name == raw.name(c); })) {
-          names.push_back(raw.name(c));
-          columns.push_back(raw.column_ptr(c));
-        }
-      if (names.size() != raw.column_count())
-        table = Table::make(std::move(names), std::move(columns), raw.source_lines_ptr()).value();
+            std::any_of(in.columns.begin(), in.columns.end(), [&](const InputColumn& e) { return e.name == raw.name(c); }))
+          shown.push_back(c);
+      table = raw.with_columns(shown);
     } else {
       // The rows tamis run would take out for values not fitting input.columns.
       std::vector<RemovedRow> failing;
-      auto checked = check->apply(raw, failing);
-      if (checked) table = std::move(*checked);
-      else s.input_problems.push_back(StepProblem{std::nullopt, "columns", checked.error().message});
+      table = check->apply(raw, failing);
       s.input_rejected = failing.size();
       if (failing.size() > ChangeRecord::kListedRows) failing.resize(ChangeRecord::kListedRows);
       s.input_rejects = std::move(failing);

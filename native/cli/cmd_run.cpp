@@ -238,10 +238,9 @@ int run_run(const RunArgs& args) {
       auto batch = batches.next();
       if (!batch) return report_error(batch.error());
       if (!batch->has_value()) break;
-      auto prepared = check->apply(**batch, failing);
+      const Table prepared = check->apply(**batch, failing);
       failing.clear();
-      if (!prepared) return report_error(prepared.error());
-      if (Status s = run.observe(pass, *prepared); !s) return report_error(s.error());
+      if (Status s = run.observe(pass, prepared); !s) return report_error(s.error());
       progress.update(reader->bytes_read());
     }
     run.end_pass(pass);
@@ -293,9 +292,7 @@ int run_run(const RunArgs& args) {
                     reader->total_bytes());
   {
     auto prepare = [&](StagedBatch& batch) -> Status {
-      auto prepared = check->apply(batch.raw, batch.failing);
-      if (!prepared) return prepared.take_error();
-      batch.table = std::move(*prepared);
+      batch.table = check->apply(batch.raw, batch.failing);
       return Ok{};
     };
     StagedRun staged(*reader, prepare, step_stages(run));

@@ -97,8 +97,7 @@ Status last_pass(const Job& job, const Recipe& recipe, CompiledRecipe& compiled,
     if (!batch->has_value()) break;
     const Table& raw = **batch;
     std::vector<RemovedRow> failing;
-    auto table = check.apply(raw, failing);
-    if (!table) return table.take_error();
+    Result<Table> table = check.apply(raw, failing);
     facts.rows_failing_input_types += failing.size();
     if (!failing.empty() && !facts.first_failing_input_type_line)
       facts.first_failing_input_type_line = failing.front().line;
@@ -152,10 +151,9 @@ Status run_job(const Job& job) {
       auto batch = (*reader)->next_batch();
       if (!batch) return batch.take_error();
       if (!batch->has_value()) break;
-      auto prepared = check->apply(**batch, failing);
+      const Table prepared = check->apply(**batch, failing);
       failing.clear();  // counted in the last pass
-      if (!prepared) return prepared.take_error();
-      if (Status s = run.observe(pass, *prepared); !s) return s;
+      if (Status s = run.observe(pass, prepared); !s) return s;
     }
     run.end_pass(pass);
   }
