@@ -74,29 +74,34 @@ std::vector<RejectedRecord> RunRejects::take_malformed_through(uint64_t line) {
   return out;
 }
 
+std::string malformed_reason(const std::string& reason) { return "malformed record: " + reason; }
+
+std::string input_reason(const std::string& reason) { return "input: " + reason; }
+
+std::string step_reason(const Recipe& recipe, int step, const std::string& reason) {
+  return "step " + std::to_string(step + 1) + " (" + recipe.steps[static_cast<size_t>(step)].op + "): " + reason;
+}
+
 Status RunRejects::add_batch(const Table& raw, char delimiter, const std::vector<RemovedRow>& from_input,
                              std::vector<RecipeRun::Rejected> from_steps) {
   const uint64_t through = raw.row_count() ? raw.source_line(raw.row_count() - 1) : 0;
   std::vector<Reject> rows;
   for (RejectedRecord& r : take_malformed_through(through))
-    rows.push_back({r.line, "malformed record: " + r.reason, std::move(r.text)});
+    rows.push_back({r.line, malformed_reason(r.reason), std::move(r.text)});
   auto record_of = [&](uint64_t line) {
     const auto row = row_at_line(raw, line);
     return row ? record_text(raw, *row, delimiter) : std::string();
   };
-  for (const RemovedRow& r : from_input) rows.push_back({r.line, "input: " + r.reason, record_of(r.line)});
-  for (const RecipeRun::Rejected& r : from_steps) {
-    const std::string& op = recipe_.steps[static_cast<size_t>(r.step)].op;
-    rows.push_back({r.row.line, "step " + std::to_string(r.step + 1) + " (" + op + "): " + r.row.reason,
-                    record_of(r.row.line)});
-  }
+  for (const RemovedRow& r : from_input) rows.push_back({r.line, input_reason(r.reason), record_of(r.line)});
+  for (const RecipeRun::Rejected& r : from_steps)
+    rows.push_back({r.row.line, step_reason(recipe_, r.step, r.row.reason), record_of(r.row.line)});
   return write(std::move(rows));
 }
 
 Status RunRejects::finish_input() {
   std::vector<Reject> rows;
   for (RejectedRecord& r : take_malformed_through(std::numeric_limits<uint64_t>::max()))
-    rows.push_back({r.line, "malformed record: " + r.reason, std::move(r.text)});
+    rows.push_back({r.line, malformed_reason(r.reason), std::move(r.text)});
   return write(std::move(rows));
 }
 

@@ -39,6 +39,12 @@ std::string record_text(const Table& table, size_t row, char delimiter);
 // The row of `table` whose record starts at source line `line`, if any.
 std::optional<size_t> row_at_line(const Table& table, uint64_t line);
 
+// The reason of a rejected row, as the rejects file and the reject cap's
+// message give it: "malformed record: ...", "input: ...", "step N (op): ...".
+std::string malformed_reason(const std::string& reason);
+std::string input_reason(const std::string& reason);
+std::string step_reason(const Recipe& recipe, int step, const std::string& reason);
+
 // Collects a run's rejected rows batch by batch and writes them in
 // source-line order, each with its reason ("malformed record: ...",
 // "input: ...", "step N (op): ...") and the record as read.

@@ -1,6 +1,7 @@
 #include "exports.hpp"
 
 #include "csv_writer.hpp"
+#include "run_rejects.hpp"
 #include "run_report.hpp"
 
 namespace tamis::workbench {
@@ -41,15 +42,14 @@ RemovedRow first_reject(Document& document) {
     if (!first || line < first->line) first = RemovedRow{line, std::move(reason)};
   };
   if (!document.file().rejected.empty())
-    consider(document.file().rejected.front().line, "malformed record: " + document.file().rejected.front().reason);
+    consider(document.file().rejected.front().line, malformed_reason(document.file().rejected.front().reason));
   if (!document.input_rejects().empty())
-    consider(document.input_rejects().front().line, "input: " + document.input_rejects().front().reason);
+    consider(document.input_rejects().front().line, input_reason(document.input_rejects().front().reason));
   for (size_t i = 0; i < document.step_count(); ++i) {
     ChangeRecord change = document.change(i);
     const std::vector<RemovedRow> rejected = change.take_rejected();
     if (!rejected.empty())
-      consider(rejected.front().line, "step " + std::to_string(i + 1) + " (" + document.recipe().steps[i].op +
-                                          "): " + rejected.front().reason);
+      consider(rejected.front().line, step_reason(document.recipe(), static_cast<int>(i), rejected.front().reason));
   }
   return first.value_or(RemovedRow{});
 }
