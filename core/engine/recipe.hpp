@@ -78,7 +78,7 @@ bool fits_declared_type(Type type, std::string_view value, const DateFormat& iso
 
 struct CompiledStep {
   int index = 0;  // position in the recipe (0-based), disabled steps included
-  std::unique_ptr<Step> step;
+  std::shared_ptr<const Step> step;
   std::string note;
 };
 

@@ -321,11 +321,11 @@ class ApplyJob final : public Job {
       }
       if (!runner_ || runner_step_ != i) {
         step_ = s_.slots[i].step;
-        runner_ = std::make_unique<StepRunner>(*step_, *s_.stages[i].table);
+        runner_ = run_step(step_, i, *s_.stages[i].table, budget);
         runner_step_ = i;
       }
-      if (!runner_->advance(budget)) return false;
-      Document::State::store(d_, i, runner_->take_output(), runner_->take_change(), runner_->error());
+      if (WorkBudget slice{budget}; !runner_->advance(slice)) return false;
+      Document::State::store(d_, i, runner_->take_output(), std::move(runner_->changes().front()), runner_->error());
       runner_.reset();
       // One step's work per slice: the next step starts in the next slice.
       return s_.ready(target);
@@ -355,7 +355,7 @@ class ApplyJob final : public Job {
   uint64_t revision_;
   std::optional<size_t> first_ready_;
   std::shared_ptr<const Step> step_;
-  std::unique_ptr<StepRunner> runner_;
+  std::unique_ptr<BatchedRun> runner_;
   size_t runner_step_ = 0;
 };
 
@@ -731,12 +731,13 @@ Preview preview_on(const Table& input, uint64_t serial, const nlohmann::json& de
     p.problem = problem_of(step.error(), position);
     return p;
   }
-  p.description = (*step)->describe();
-  p.depends_on_other_rows = (*step)->needs_first_pass() || (*step)->start() != nullptr;
+  const std::shared_ptr<const Step> parsed = std::move(*step);
+  p.description = parsed->describe();
+  p.depends_on_other_rows = parsed->needs_first_pass() || parsed->start() != nullptr;
   p.rows = {std::min(rows.begin, input.row_count()), std::min(rows.end, input.row_count())};
   p.complete = p.rows.begin == 0 && p.rows.end == input.row_count();
   p.before = slice_rows(input, p.rows.begin, p.rows.end);
-  auto after = apply_step(**step, p.before, p.change);
+  auto after = apply_step(parsed, position, p.before, p.change);
   if (!after) {
     p.problem = problem_of(after.error(), position);
     return p;
@@ -764,7 +765,7 @@ struct Document::PreviewJob::Impl {
   uint64_t serial = 0;
   Table input;
   std::shared_ptr<const Step> step;
-  std::unique_ptr<StepRunner> runner;
+  std::unique_ptr<BatchedRun> runner;
   Preview result;
   bool done = false;
 };
@@ -802,9 +803,9 @@ bool Document::PreviewJob::step(size_t budget) {
     m.step = std::shared_ptr<const Step>(std::move(*step));
     m.result.description = m.step->describe();
     m.result.depends_on_other_rows = m.step->needs_first_pass() || m.step->start() != nullptr;
-    m.runner = std::make_unique<StepRunner>(*m.step, input);
+    m.runner = run_step(m.step, m.position, input, budget);
   }
-  if (!m.runner->advance(budget)) return false;
+  if (WorkBudget slice{budget}; !m.runner->advance(slice)) return false;
   const Table& input = m.input;
   if (m.runner->error()) {
     m.result.problem = problem_of(*m.runner->error(), m.position);
@@ -813,7 +814,7 @@ bool Document::PreviewJob::step(size_t budget) {
     m.result.complete = true;
     m.result.before = input;
     m.result.after = m.runner->take_output();
-    m.result.change = m.runner->take_change();
+    m.result.change = std::move(m.runner->changes().front());
   }
   m.done = true;
   return true;

@@ -12,12 +12,12 @@
 #include <string>
 
 #include "error.hpp"
+#include "row_batches.hpp"
 
 namespace tamis::workbench {
 
-// About 10 ms of work per slice for most jobs on a laptop (common practice:
-// keep each frame's work well under the 16 ms of a 60 Hz frame).
-inline constexpr size_t kSliceBudget = size_t{1} << 18;
+// The engine's slice (row_batches.hpp): about 10 ms of work on a laptop.
+inline constexpr size_t kSliceBudget = kSliceCells;
 
 class Job {
  public:
