@@ -9,8 +9,9 @@
 
 namespace tamis {
 
-void detect_case_variants(DetectorContext& ctx) {
+Task<> detect_case_variants(DetectorContext& ctx) {
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     const ColumnValues& values = ctx.values(c);
     std::unordered_map<std::string, std::vector<const DistinctValue*>> groups;
     std::vector<std::string> order;
@@ -55,8 +56,10 @@ void detect_case_variants(DetectorContext& ctx) {
     f.facts["values"] = rows;
     f.facts["sets"] = sets;
     f.facts["map"] = map;
-    ctx.add_fix(f, {{"op", "map_values"}, {"column", name}, {"map", map}, {"note", "one spelling per category"}},
-                false, "letter case can carry meaning (codes, names such as \"May\" and \"may\"); check the map");
+    nlohmann::ordered_json fix_step = {
+        {"op", "map_values"}, {"column", name}, {"map", map}, {"note", "one spelling per category"}};
+    co_await ctx.add_fix(f, std::move(fix_step), false,
+                         "letter case can carry meaning (codes, names such as \"May\" and \"may\"); check the map");
     ctx.findings.push_back(std::move(f));
   }
 }

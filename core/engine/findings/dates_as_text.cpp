@@ -58,13 +58,14 @@ bool date_shaped(std::string_view v) {
 
 }  // namespace
 
-void detect_dates_as_text(DetectorContext& ctx) {
+Task<> detect_dates_as_text(DetectorContext& ctx) {
   std::vector<std::vector<DateFormat>> compiled;
   for (const Family& family : families()) {
     compiled.emplace_back();
     for (const char* pattern : family.readings) compiled.back().push_back(DateFormat::compile(pattern).value());
   }
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     const ColumnValues& values = ctx.values(c);
     if (values.non_null == 0) continue;
     // counts[f][r]: values reading r of family f parses.
@@ -182,8 +183,9 @@ void detect_dates_as_text(DetectorContext& ctx) {
                                     {"on_error", "null"},
                                     {"note", "read the text as dates"}};
     };
-    ctx.add_fix(f, step_for(formats), false, why);
-    if (any_tied) ctx.add_fix(f, step_for(formats_for(true)), false, why + " (this is the other day/month order)");
+    co_await ctx.add_fix(f, step_for(formats), false, why);
+    if (any_tied)
+      co_await ctx.add_fix(f, step_for(formats_for(true)), false, why + " (this is the other day/month order)");
     ctx.findings.push_back(std::move(f));
   }
 }

@@ -7,8 +7,9 @@
 
 namespace tamis {
 
-void detect_decimal_comma(DetectorContext& ctx) {
+Task<> detect_decimal_comma(DetectorContext& ctx) {
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     const ColumnValues& values = ctx.values(c);
     uint64_t commas = 0, points = 0, numbers = 0;
     std::vector<std::string> examples;
@@ -36,14 +37,14 @@ void detect_decimal_comma(DetectorContext& ctx) {
     for (const std::string& e : examples) f.details.push_back("for example " + shown_value(e));
     f.facts["decimal_comma"] = commas;
     f.facts["decimal_point"] = points;
-    ctx.add_fix(f,
-                {{"op", "replace_text"},
-                 {"columns", {name}},
-                 {"find", "^([+-]?[0-9]+),([0-9]{1,2}|[0-9]{4,})$"},
-                 {"replace", "$1.$2"},
-                 {"match", "regex"},
-                 {"note", "decimal comma becomes a decimal point"}},
-                false, "check that the commas are decimal marks and not list separators or thousands separators");
+    nlohmann::ordered_json fix_step = {{"op", "replace_text"},
+                                       {"columns", {name}},
+                                       {"find", "^([+-]?[0-9]+),([0-9]{1,2}|[0-9]{4,})$"},
+                                       {"replace", "$1.$2"},
+                                       {"match", "regex"},
+                                       {"note", "decimal comma becomes a decimal point"}};
+    co_await ctx.add_fix(f, std::move(fix_step), false,
+                         "check that the commas are decimal marks and not list separators or thousands separators");
     ctx.findings.push_back(std::move(f));
   }
 }

@@ -7,17 +7,17 @@
 
 namespace tamis {
 
-void detect_duplicate_rows(DetectorContext& ctx);
-void detect_edge_white_space(DetectorContext& ctx);
-void detect_inner_white_space(DetectorContext& ctx);
-void detect_missing_as_text(DetectorContext& ctx);
-void detect_trailing_punctuation(DetectorContext& ctx);
-void detect_case_variants(DetectorContext& ctx);
-void detect_decimal_comma(DetectorContext& ctx);
-void detect_numbers_as_text(DetectorContext& ctx);
-void detect_dates_as_text(DetectorContext& ctx);
-void detect_fillable_nulls(DetectorContext& ctx);
-void detect_empty_measure_rows(DetectorContext& ctx);
-void detect_useless_columns(DetectorContext& ctx);
+Task<> detect_duplicate_rows(DetectorContext& ctx);
+Task<> detect_edge_white_space(DetectorContext& ctx);
+Task<> detect_inner_white_space(DetectorContext& ctx);
+Task<> detect_missing_as_text(DetectorContext& ctx);
+Task<> detect_trailing_punctuation(DetectorContext& ctx);
+Task<> detect_case_variants(DetectorContext& ctx);
+Task<> detect_decimal_comma(DetectorContext& ctx);
+Task<> detect_numbers_as_text(DetectorContext& ctx);
+Task<> detect_dates_as_text(DetectorContext& ctx);
+Task<> detect_fillable_nulls(DetectorContext& ctx);
+Task<> detect_empty_measure_rows(DetectorContext& ctx);
+Task<> detect_useless_columns(DetectorContext& ctx);
 
 }  // namespace tamis

@@ -5,17 +5,17 @@
 
 namespace tamis {
 
-void detect_duplicate_rows(DetectorContext& ctx) {
-  if (ctx.table.row_count() < 2 || ctx.table.column_count() == 0) return;
+Task<> detect_duplicate_rows(DetectorContext& ctx) {
+  if (ctx.table.row_count() < 2 || ctx.table.column_count() == 0) co_return;
   Finding f;
   f.kind = "duplicate_rows";
   nlohmann::ordered_json step = {{"op", "deduplicate"},
                                  {"columns", "*"},
                                  {"keep", "first"},
                                  {"note", "remove rows identical to an earlier row, keeping the first"}};
-  if (!ctx.add_fix(f, std::move(step), true, "")) return;
+  if (!co_await ctx.add_fix(f, std::move(step), true, "")) co_return;
   const uint64_t repeats = f.fixes.front().preview.rows_removed;
-  if (repeats == 0) return;
+  if (repeats == 0) co_return;
   f.columns = ctx.table.names();
   f.rows_affected = repeats;
   f.title = count_of(repeats, "row repeats", "rows repeat") + " an earlier row exactly";

@@ -5,8 +5,9 @@
 
 namespace tamis {
 
-void detect_edge_white_space(DetectorContext& ctx) {
+Task<> detect_edge_white_space(DetectorContext& ctx) {
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     uint64_t rows = 0, distinct = 0;
     for (const DistinctValue& v : ctx.values(c).values) {
       if (utf8::is_blank(v.value)) continue;
@@ -23,7 +24,9 @@ void detect_edge_white_space(DetectorContext& ctx) {
                     "values and break joins and filters. Trimming removes them and nothing else.";
     f.facts["values"] = rows;
     f.facts["distinct_values"] = distinct;
-    ctx.add_fix(f, {{"op", "trim"}, {"columns", {name}}, {"note", "remove white space around values"}}, true, "");
+    nlohmann::ordered_json fix_step = {
+        {"op", "trim"}, {"columns", {name}}, {"note", "remove white space around values"}};
+    co_await ctx.add_fix(f, std::move(fix_step), true, "");
     ctx.findings.push_back(std::move(f));
   }
 }

@@ -35,11 +35,11 @@ constexpr size_t kMaxSubsetColumns = 12;  // 4096 subsets
 
 }  // namespace
 
-void detect_empty_measure_rows(DetectorContext& ctx) {
+Task<> detect_empty_measure_rows(DetectorContext& ctx) {
   const std::vector<size_t> measures = measure_columns(ctx);
-  if (measures.empty() || measures.size() == ctx.table.column_count()) return;
+  if (measures.empty() || measures.size() == ctx.table.column_count()) co_return;
   const size_t n = ctx.table.row_count();
-  if (n == 0) return;
+  if (n == 0) co_return;
   // Per row, the set of measure columns that are NULL (bit i = measures[i]).
   const size_t bits = std::min(measures.size(), kMaxSubsetColumns);
   const uint64_t full = (uint64_t{1} << bits) - 1;
@@ -51,6 +51,7 @@ void detect_empty_measure_rows(DetectorContext& ctx) {
       if (ctx.table.column(measures[i]).is_null(row)) mask |= uint64_t{1} << i, ++nulls[i];
     ++rows_with_mask[mask];
   }
+  ctx.spend(n * bits);
   const auto rows_missing_all = [&](uint64_t subset) {
     uint64_t count = 0;
     for (uint64_t mask = 0; mask <= full; ++mask)
@@ -74,7 +75,7 @@ void detect_empty_measure_rows(DetectorContext& ctx) {
       if (size > chosen_size || (size == chosen_size && observed > rows)) chosen = subset, rows = observed;
     }
   }
-  if (rows == 0) return;
+  if (rows == 0) co_return;
   std::string where;
   Finding f;
   f.kind = "empty_measure_rows";
@@ -99,8 +100,9 @@ void detect_empty_measure_rows(DetectorContext& ctx) {
   f.facts["measure_columns"] = f.columns;
   f.facts["all_measures"] = every;
   f.facts["rows"] = rows;
-  ctx.add_fix(f, {{"op", "drop_rows"}, {"where", where}, {"note", "rows without measurements"}}, false,
-              "removes whole rows: their other columns may still matter (e.g. to count visits or list sites)");
+  nlohmann::ordered_json fix_step = {{"op", "drop_rows"}, {"where", where}, {"note", "rows without measurements"}};
+  co_await ctx.add_fix(f, std::move(fix_step), false,
+                       "removes whole rows: their other columns may still matter (e.g. to count visits or list sites)");
   ctx.findings.push_back(std::move(f));
 }
 

@@ -102,24 +102,28 @@ KeyScore score(const ValueIds& keys, const ValueIds& target, size_t key) {
 
 }  // namespace
 
-void detect_fillable_nulls(DetectorContext& ctx) {
+Task<> detect_fillable_nulls(DetectorContext& ctx) {
   const std::vector<size_t> text = ctx.text_columns();
   std::unordered_map<size_t, ValueIds> key_ids;  // keys are read from the table as it is; only c gets fixes
   for (const size_t c : text) {
+    co_await ctx.pause();
     if (ctx.values(c).nulls == 0) continue;
     const std::string& name = ctx.table.name(c);
     const StepList first = ctx.earlier_fixes(name, {"inner_white_space", "trailing_punctuation", "case_variants", "similar_values"});
-    auto base = apply_steps(ctx.table, first);
+    auto base = co_await ctx.apply(first);
     if (!base) continue;
     const ValueIds target = value_ids(*base, c);
+    ctx.spend(base->row_count());
     std::optional<KeyScore> best;
     for (const size_t k : text) {
       if (k == c) continue;
+      co_await ctx.pause();
       const ColumnValues& key_values = ctx.values(k);
       if (key_values.values.size() < 2 || key_values.values.size() * kMinGroupSize > key_values.non_null) continue;
       auto ids = key_ids.find(k);
       if (ids == key_ids.end()) ids = key_ids.emplace(k, value_ids(ctx.table, k)).first;
       const KeyScore s = score(ids->second, target, k);
+      ctx.spend(2 * ctx.table.row_count());
       if (s.fillable == 0 || s.agreement < kAgreement) continue;
       if (!best || s.fillable > best->fillable || (s.fillable == best->fillable && s.conflicting < best->conflicting))
         best = s;
@@ -149,12 +153,11 @@ void detect_fillable_nulls(DetectorContext& ctx) {
     if (!first.empty()) f.facts["previewed_after"] = first;
     std::string why = "filling assumes every row with the same " + key + " has the same " + name;
     if (!first.empty()) why += "; apply the variant-spelling fixes for " + name + " first";
-    ctx.add_fix(f,
-                {{"op", "fill_from_group"},
-                 {"column", name},
-                 {"keys", {key}},
-                 {"note", "take the value the other rows of the same " + key + " agree on"}},
-                false, why, first);
+    nlohmann::ordered_json fix_step = {{"op", "fill_from_group"},
+                                       {"column", name},
+                                       {"keys", {key}},
+                                       {"note", "take the value the other rows of the same " + key + " agree on"}};
+    co_await ctx.add_fix(f, std::move(fix_step), false, why, first);
     ctx.findings.push_back(std::move(f));
   }
 }

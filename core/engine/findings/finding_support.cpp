@@ -37,7 +37,10 @@ ColumnValues collect_values(const Column& column) {
 
 const ColumnValues& DetectorContext::values(size_t column) {
   if (cache_.size() < table.column_count()) cache_.resize(table.column_count());
-  if (!cache_[column]) cache_[column] = std::make_unique<ColumnValues>(collect_values(table.column(column)));
+  if (!cache_[column]) {
+    cache_[column] = std::make_unique<ColumnValues>(collect_values(table.column(column)));
+    spend(table.row_count());
+  }
   return *cache_[column];
 }
 
@@ -58,13 +61,13 @@ std::vector<size_t> DetectorContext::text_columns() const {
   return out;
 }
 
-bool DetectorContext::add_fix(Finding& finding, nlohmann::ordered_json step, bool safe, std::string why_review,
-                              const StepList& first) {
-  auto preview = preview_step(table, first, step, options.examples);
+Task<bool> DetectorContext::add_fix(Finding& finding, nlohmann::ordered_json step, bool safe, std::string why_review,
+                                    StepList first) {
+  auto preview = co_await this->preview(std::move(first), step);
   if (!preview) {
     finding.details.push_back("the suggested " + step.value("op", std::string("?")) +
                               " step did not run: " + preview.error().to_string());
-    return false;
+    co_return false;
   }
   SuggestedFix fix;
   fix.step = std::move(step);
@@ -72,7 +75,7 @@ bool DetectorContext::add_fix(Finding& finding, nlohmann::ordered_json step, boo
   if (!safe) fix.why_review = std::move(why_review);
   fix.preview = std::move(*preview);
   finding.fixes.push_back(std::move(fix));
-  return true;
+  co_return true;
 }
 
 StepList DetectorContext::earlier_fixes(const std::string& column,
@@ -106,15 +109,12 @@ std::string row_text(const Table& table, size_t row) {
   return out;
 }
 
-void removed_examples(const Table& base, const ChangeRecord& change, size_t limit, FixPreview& preview) {
-  std::vector<uint64_t> lines;
-  for (const RemovedRow& r : change.removed)
-    if (lines.size() < limit) lines.push_back(r.line);
-  std::set<uint64_t> wanted(lines.begin(), lines.end());
+// The removed rows among `lines` (source lines, all in `base`), in row order.
+void removed_examples(const Table& base, std::set<uint64_t> lines, FixPreview& preview) {
   ColumnCursor cursor(base.source_lines());
-  for (size_t row = 0; row < base.row_count() && !wanted.empty(); ++row, cursor.next()) {
+  for (size_t row = 0; row < base.row_count() && !lines.empty(); ++row, cursor.next()) {
     const auto line = static_cast<uint64_t>(cursor.number());
-    if (!wanted.erase(line)) continue;
+    if (!lines.erase(line)) continue;
     FixExample e;
     e.before = row_text(base, row);
     e.removed = true;
@@ -174,6 +174,32 @@ void changed_examples(const Table& base, const Table& after, const ChangeRecord&
   }
 }
 
+// The examples of a fix, batch by batch: removed rows while any are
+// removed, else changed cells, in source order either way.
+class ExampleCollector {
+ public:
+  explicit ExampleCollector(size_t limit) : limit_(limit) {}
+  void add(const Table& before, const Table& after, const ChangeRecord& change) {
+    if (removed_.examples.size() < limit_ && change.removed.size() > removed_seen_) {
+      std::set<uint64_t> lines;
+      for (size_t i = removed_seen_; i < change.removed.size() && removed_.examples.size() + lines.size() < limit_; ++i)
+        lines.insert(change.removed[i].line);
+      removed_examples(before, std::move(lines), removed_);
+    }
+    removed_seen_ = change.removed.size();
+    if (changed_.examples.size() < limit_ && change.rows_removed + change.rows_rejected == 0)
+      changed_examples(before, after, change, limit_, changed_);
+  }
+  std::vector<FixExample> take(bool rows_removed) {
+    return std::move(rows_removed ? removed_.examples : changed_.examples);
+  }
+
+ private:
+  size_t limit_;
+  size_t removed_seen_ = 0;
+  FixPreview removed_, changed_;
+};
+
 }  // namespace
 
 Result<Table> apply_steps(const Table& table, const StepList& steps) {
@@ -183,25 +209,37 @@ Result<Table> apply_steps(const Table& table, const StepList& steps) {
   return apply_recipe(*compiled, table);
 }
 
-Result<FixPreview> preview_step(const Table& table, const StepList& first, const nlohmann::ordered_json& step,
-                                size_t examples) {
-  auto base = apply_steps(table, first);
-  if (!base) return base.take_error();
-  auto compiled = compile_steps(schema_of(*base), {step});
-  if (!compiled) return compiled.take_error();
-  std::vector<ChangeRecord> changes;
-  auto after = apply_recipe(*compiled, *base, &changes);
-  if (!after) return after.take_error();
+Task<Result<Table>> apply_sliced(SliceControl& control, const Table& table, const StepList& steps,
+                                 size_t batch_cells) {
+  if (steps.empty()) co_return table;
+  auto compiled = compile_steps(schema_of(table), steps);
+  if (!compiled) co_return compiled.take_error();
+  BatchedRun run(std::move(*compiled), table, batch_cells);
+  co_await SlicedWork{control, [&run](WorkBudget& budget) { return run.advance(budget); }};
+  if (run.error()) co_return *run.error();
+  co_return run.take_output();
+}
+
+Task<Result<FixPreview>> DetectorContext::preview(StepList first, nlohmann::ordered_json step) {
+  first.push_back(step);
+  auto compiled = compile_steps(schema_of(table), first);
+  if (!compiled) co_return compiled.take_error();
+  BatchedRun run(std::move(*compiled), table, options.batch_cells);
+  run.discard_output();
+  ExampleCollector examples(options.examples);
+  run.observe_batches([&examples](const Table& before, const Table& after, const ChangeRecord& change) {
+    examples.add(before, after, change);
+  });
+  co_await SlicedWork{control_, [&run](WorkBudget& budget) { return run.advance(budget); }};
+  if (run.error()) co_return *run.error();
+  const ChangeRecord& change = run.changes().back();
   FixPreview preview;
-  if (changes.empty()) return preview;
-  const ChangeRecord& change = changes.front();
   preview.rows_removed = change.rows_removed + change.rows_rejected;
   for (const auto& [name, count] : change.cells_changed) preview.cells_changed += count;
   preview.warnings = change.conflicts;
   preview.warnings.insert(preview.warnings.end(), change.warnings.begin(), change.warnings.end());
-  if (preview.rows_removed > 0) removed_examples(*base, change, examples, preview);
-  else changed_examples(*base, *after, change, examples, preview);
-  return preview;
+  preview.examples = examples.take(preview.rows_removed > 0);
+  co_return preview;
 }
 
 std::string cell_text(const Column& column, size_t row) {

@@ -1,17 +1,21 @@
 // What the detectors share: the table they look at, its distinct values per
-// column, and the preview of a suggested step by really running it.
+// column, the preview of a suggested step by really running it, and the
+// slicing of their work.
 #pragma once
 
 #include <nlohmann/json.hpp>
 
 #include <cstdint>
+#include <functional>
 #include <memory>
 #include <string>
 #include <string_view>
 #include <unordered_map>
 #include <vector>
 
+#include "findings/detector_task.hpp"
 #include "findings/findings.hpp"
+#include "row_batches.hpp"
 
 namespace tamis {
 
@@ -33,39 +37,80 @@ ColumnValues collect_values(const Column& column);
 
 using StepList = std::vector<nlohmann::ordered_json>;
 
+// How the scanner's coroutines share a slice (detector_task.hpp): the budget
+// left in it, and the whole-table work a suspended coroutine waits for.
+struct SliceControl {
+  WorkBudget* budget = nullptr;
+  std::function<bool(WorkBudget&)> pending;  // returns true once the work has ended
+  coro::coroutine_handle<> waiting;           // resumed when `pending` has ended, or at the next slice
+};
+
+// co_await: runs `work` within this slice and, if it needs more, the next ones.
+struct SlicedWork {
+  SliceControl& control;
+  std::function<bool(WorkBudget&)> work;
+  bool await_ready() { return work(*control.budget); }
+  void await_suspend(coro::coroutine_handle<> awaiting) {
+    control.waiting = awaiting;
+    control.pending = std::move(work);
+  }
+  void await_resume() const noexcept {}
+};
+
+// co_await: continues at once while the slice has budget left, else in the next slice.
+struct Pause {
+  SliceControl& control;
+  bool await_ready() const noexcept { return !control.budget->exhausted(); }
+  void await_suspend(coro::coroutine_handle<> awaiting) noexcept { control.waiting = awaiting; }
+  void await_resume() const noexcept {}
+};
+
+// Steps applied to a whole table in row batches across slices.
+Task<Result<Table>> apply_sliced(SliceControl& control, const Table& table, const StepList& steps,
+                                 size_t batch_cells);
+
 // One detector's view. `table` is what the detector inspects: the raw table
 // for the detectors that propose the safe text fixes, otherwise the table
-// after them (`applied` lists the steps that made it from the raw table).
+// after them.
 class DetectorContext {
  public:
   DetectorContext(const Table& table, const TableProfile& profile, const FindingOptions& options,
-                  std::vector<Finding>& findings)
-      : table(table), profile(profile), options(options), findings(findings) {}
+                  std::vector<Finding>& findings, SliceControl& control)
+      : table(table), profile(profile), options(options), findings(findings), control_(control) {}
   const Table& table;
   const TableProfile& profile;
   const FindingOptions& options;
   std::vector<Finding>& findings;  // earlier detectors' findings; add new ones here
 
+  // Computed on first use, which counts as a pass over the column.
   const ColumnValues& values(size_t column);
   // Text columns that hold at least one non-NULL value.
   std::vector<size_t> text_columns() const;
-  // A fix previewed on `table` (after the `first` steps, which are not counted).
-  // Returns false (and notes why in the finding's details) when the step does
+  // A fix previewed on `table` (after the `first` steps, which are not
+  // counted). False (and the finding's details say why) when the step does
   // not run, which would be a bug in the detector.
-  bool add_fix(Finding& finding, nlohmann::ordered_json step, bool safe, std::string why_review,
-               const StepList& first = {});
+  Task<bool> add_fix(Finding& finding, nlohmann::ordered_json step, bool safe, std::string why_review,
+                     StepList first = {});
+  // `table` after the steps, computed in row batches.
+  Task<Result<Table>> apply(StepList steps) {
+    return apply_sliced(control_, table, std::move(steps), options.batch_cells);
+  }
   // The fixes earlier findings suggest for `column` of the listed kinds
   // (their first fix each), in finding order.
   StepList earlier_fixes(const std::string& column, std::initializer_list<std::string_view> kinds) const;
 
+  // Counts `cells` of work done against the slice's budget; co_await
+  // pause() where a detector may continue in the next slice.
+  void spend(size_t cells) { control_.budget->spend(cells); }
+  Pause pause() { return {control_}; }
+
  private:
+  Task<Result<FixPreview>> preview(StepList first, nlohmann::ordered_json step);
+  SliceControl& control_;
   std::vector<std::unique_ptr<ColumnValues>> cache_;
 };
 
-// Runs `step` (after `first`) over the table and counts what it changed.
-Result<FixPreview> preview_step(const Table& table, const StepList& first, const nlohmann::ordered_json& step,
-                                size_t examples);
-// Applies the steps in order (all must run).
+// Applies the steps in order (all must run), in one call.
 Result<Table> apply_steps(const Table& table, const StepList& steps);
 
 // "NULL" for NULL, else the canonical text of the cell.

@@ -1,6 +1,7 @@
 #include "findings/findings.hpp"
 
 #include <algorithm>
+#include <utility>
 
 #include "findings/detectors.hpp"
 #include "findings/similar_values.hpp"
@@ -18,7 +19,7 @@ enum class View : uint8_t { raw, trimmed, tidy };
 
 struct Detector {
   FindingKind kind;
-  void (*detect)(DetectorContext&);
+  Task<> (*detect)(DetectorContext&);
   View view;
 };
 
@@ -86,23 +87,42 @@ struct FindingScanner::State {
   Table seen;  // the table the current view's detectors look at
   TableProfile seen_profile;
   std::vector<Finding> found;  // in detector order
+  SliceControl control;
   std::unique_ptr<DetectorContext> context;
+  Task<> scan = run_detectors();
+
+  Task<> run_detectors() {
+    for (; next < kDetectorCount; ++next) {
+      const Detector& d = kDetectors[next];
+      if (d.view != view || !context) co_await enter(d.view);
+      co_await d.detect(*context);
+    }
+  }
 
   // The raw table with the safe text fixes found so far (every safe fix
   // except row removal, which later detectors must not see, so that their
   // row counts stay those of the file).
-  void enter(View next_view) {
+  Task<> enter(View next_view) {
     view = next_view;
     StepList safe;
     for (const Finding& f : found)
       if (!f.fixes.empty() && f.fixes.front().safe && f.fixes.front().step.value("op", "") != "deduplicate")
         safe.push_back(f.fixes.front().step);
-    auto table = apply_steps(raw, safe);
+    auto table = co_await apply_sliced(control, raw, safe, options.batch_cells);
     // The safe steps were each previewed on this same sequence; one that does
     // not run here is left out of the view instead of stopping the scan.
     seen = table ? std::move(*table) : raw;
-    seen_profile = view == View::tidy && !safe.empty() ? profile_table(seen) : raw_profile;
-    context = std::make_unique<DetectorContext>(seen, seen_profile, options, found);
+    seen_profile = raw_profile;
+    if (view == View::tidy && !safe.empty()) {
+      TableProfiler profiler(seen);
+      co_await SlicedWork{control, [&profiler](WorkBudget& budget) {
+                            const bool done = profiler.step(budget.left);
+                            budget.spend(budget.left);
+                            return done;
+                          }};
+      seen_profile = profiler.result();
+    }
+    context = std::make_unique<DetectorContext>(seen, seen_profile, options, found, control);
   }
 };
 
@@ -111,24 +131,23 @@ FindingScanner::FindingScanner(Table table, TableProfile profile, FindingOptions
   state_->raw = std::move(table);
   state_->raw_profile = std::move(profile);
   state_->options = std::move(options);
-  state_->seen = state_->raw;
-  state_->seen_profile = state_->raw_profile;
-  state_->context = std::make_unique<DetectorContext>(state_->seen, state_->seen_profile, state_->options,
-                                                      state_->found);
+  state_->control.waiting = state_->scan.handle();
 }
 
 FindingScanner::~FindingScanner() = default;
 
+// A slice resumes the scan where it stopped: the whole-table work it waits
+// for first, then the detector that waits for it.
 bool FindingScanner::step(size_t budget) {
   State& st = *state_;
-  const size_t cost = std::max<size_t>(1, st.raw.row_count() * std::max<size_t>(1, st.raw.column_count()));
-  while (st.next < kDetectorCount) {
-    const Detector& d = kDetectors[st.next];
-    if (d.view != st.view) st.enter(d.view);
-    d.detect(*st.context);
-    ++st.next;
-    budget -= std::min(budget, cost);
-    if (budget == 0 && st.next < kDetectorCount) return false;
+  if (!st.scan.done()) {
+    WorkBudget slice{std::max<size_t>(budget, 1)};
+    st.control.budget = &slice;
+    if (st.control.pending && !st.control.pending(slice)) return false;
+    st.control.pending = nullptr;
+    std::exchange(st.control.waiting, {}).resume();
+    if (!st.scan.done()) return false;
+    st.scan.result();
   }
   if (findings_.empty() && !st.found.empty()) {
     findings_ = std::move(st.found);

@@ -29,6 +29,7 @@
 #include <vector>
 
 #include "profile.hpp"
+#include "row_batches.hpp"
 #include "table.hpp"
 
 namespace tamis {
@@ -73,6 +74,9 @@ struct FindingOptions {
   // to_null itself compares exactly.
   std::vector<std::string> sentinels{"NULL", "N/A", "-", "none", "?"};
   size_t examples = 5;  // before -> after examples per fix
+  // Whole-table work (previews, the views) runs in row batches of about
+  // this many cells, so that a scan can stop between any two of them.
+  size_t batch_cells = kSliceCells;
 };
 
 // A detector kind and what it looks for, for --help and the workbench. The

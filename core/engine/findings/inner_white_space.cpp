@@ -30,8 +30,9 @@ bool has_odd_inner_space(std::string_view value) {
 
 }  // namespace
 
-void detect_inner_white_space(DetectorContext& ctx) {
+Task<> detect_inner_white_space(DetectorContext& ctx) {
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     uint64_t rows = 0, line_breaks = 0;
     for (const DistinctValue& v : ctx.values(c).values) {
       if (!has_odd_inner_space(v.value)) continue;
@@ -52,8 +53,10 @@ void detect_inner_white_space(DetectorContext& ctx) {
     f.facts["values"] = rows;
     f.facts["line_breaks"] = line_breaks;
     if (line_breaks) f.details.push_back(count_of(line_breaks, "value contains", "values contain") + " a line break");
-    ctx.add_fix(f, {{"op", "collapse_spaces"}, {"columns", {name}}, {"note", "one space between words"}}, false,
-                "a line break or tab inside a value can be deliberate (an address, a list); look at the examples");
+    nlohmann::ordered_json fix_step = {
+        {"op", "collapse_spaces"}, {"columns", {name}}, {"note", "one space between words"}};
+    co_await ctx.add_fix(f, std::move(fix_step), false,
+                         "a line break or tab inside a value can be deliberate (an address, a list); look at the examples");
     ctx.findings.push_back(std::move(f));
   }
 }

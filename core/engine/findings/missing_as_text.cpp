@@ -9,10 +9,11 @@
 
 namespace tamis {
 
-void detect_missing_as_text(DetectorContext& ctx) {
+Task<> detect_missing_as_text(DetectorContext& ctx) {
   std::set<std::string> folded_sentinels;
   for (const std::string& s : ctx.options.sentinels) folded_sentinels.insert(fold_case(utf8::trim_white_space(s)));
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     uint64_t blanks = 0, sentinels = 0;
     std::vector<std::string> spellings;
     nlohmann::ordered_json per_spelling = nlohmann::ordered_json::object();
@@ -46,7 +47,7 @@ void detect_missing_as_text(DetectorContext& ctx) {
     if (!spellings.empty()) step["values"] = spellings;
     step["blank"] = true;
     step["note"] = "blanks and placeholders become NULL";
-    ctx.add_fix(f, std::move(step), true, "");
+    co_await ctx.add_fix(f, std::move(step), true, "");
     ctx.findings.push_back(std::move(f));
   }
 }

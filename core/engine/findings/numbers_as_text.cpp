@@ -7,13 +7,15 @@
 
 namespace tamis {
 
-void detect_numbers_as_text(DetectorContext& ctx) {
+Task<> detect_numbers_as_text(DetectorContext& ctx) {
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     const std::string& name = ctx.table.name(c);
     const StepList first = ctx.earlier_fixes(name, {"decimal_comma"});
-    auto base = apply_steps(ctx.table, first);
+    auto base = co_await ctx.apply(first);
     if (!base) continue;
     const ColumnValues values = collect_values(base->column(c));
+    ctx.spend(base->row_count());
     uint64_t numbers = 0, comma_groups = 0, point_groups = 0, decimal_commas = 0, percents = 0, currencies = 0;
     uint64_t point_fractions = 0, fractions = 0, unreadable = 0;
     bool inner_space = false;
@@ -85,7 +87,7 @@ void detect_numbers_as_text(DetectorContext& ctx) {
       why += "; the percent signs are removed (not divided by 100) because the other values are written in percent "
              "without the sign";
     if (!first.empty()) why += "; apply the decimal-comma fix first";
-    ctx.add_fix(f, std::move(step), false, why, first);
+    co_await ctx.add_fix(f, std::move(step), false, why, first);
     ctx.findings.push_back(std::move(f));
   }
 }

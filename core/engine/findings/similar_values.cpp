@@ -27,11 +27,12 @@ bool number_or_date(std::string_view v) {
 
 }  // namespace
 
-void detect_similar_values(DetectorContext& ctx) {
+Task<> detect_similar_values(DetectorContext& ctx) {
   SimilarOptions options;
   options.method = SimilarMethod::levenshtein;
   options.threshold = kThreshold;
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     const ColumnValues& values = ctx.values(c);
     if (values.values.size() < 2 || values.values.size() * kMinRowsPerValue > values.non_null) continue;
     uint64_t typed = 0;
@@ -75,9 +76,9 @@ void detect_similar_values(DetectorContext& ctx) {
     f.facts["groups"] = std::move(group_facts);
     nlohmann::ordered_json step = map_values_step(name, groups);
     step["note"] = "merge variant spellings";
-    ctx.add_fix(f, std::move(step), false,
-                "the sets are found by similarity: two different places or people with close names would be "
-                "merged too; check every set (tamis similar lets you choose another method or threshold)");
+    co_await ctx.add_fix(f, std::move(step), false,
+                         "the sets are found by similarity: two different places or people with close names would be "
+                         "merged too; check every set (tamis similar lets you choose another method or threshold)");
     ctx.findings.push_back(std::move(f));
   }
 }

@@ -6,6 +6,6 @@
 
 namespace tamis {
 
-void detect_similar_values(DetectorContext& ctx);
+Task<> detect_similar_values(DetectorContext& ctx);
 
 }  // namespace tamis

@@ -34,8 +34,9 @@ bool ends_with_punctuation(std::string_view v) {
 
 }  // namespace
 
-void detect_trailing_punctuation(DetectorContext& ctx) {
+Task<> detect_trailing_punctuation(DetectorContext& ctx) {
   for (const size_t c : ctx.text_columns()) {
+    co_await ctx.pause();
     const ColumnValues& values = ctx.values(c);
     // The most frequent spelling of each case-folded value without trailing punctuation.
     std::unordered_map<std::string, const DistinctValue*> bare;
@@ -74,9 +75,10 @@ void detect_trailing_punctuation(DetectorContext& ctx) {
     }
     f.facts["values"] = rows;
     f.facts["map"] = map;
-    ctx.add_fix(f,
-                {{"op", "map_values"}, {"column", name}, {"map", map}, {"note", "drop stray punctuation at the end"}},
-                false, "punctuation at the end can belong to a value (an abbreviation such as \"St.\"); check the map");
+    nlohmann::ordered_json fix_step = {
+        {"op", "map_values"}, {"column", name}, {"map", map}, {"note", "drop stray punctuation at the end"}};
+    co_await ctx.add_fix(f, std::move(fix_step), false,
+                         "punctuation at the end can belong to a value (an abbreviation such as \"St.\"); check the map");
     ctx.findings.push_back(std::move(f));
   }
 }

@@ -6,8 +6,8 @@
 
 namespace tamis {
 
-void detect_useless_columns(DetectorContext& ctx) {
-  if (ctx.table.row_count() < 2) return;
+Task<> detect_useless_columns(DetectorContext& ctx) {
+  if (ctx.table.row_count() < 2) co_return;
   for (size_t c = 0; c < ctx.table.column_count(); ++c) {
     const Column& column = ctx.table.column(c);
     uint64_t nulls = 0;
@@ -33,8 +33,10 @@ void detect_useless_columns(DetectorContext& ctx) {
     }
     f.facts["all_null"] = all_null;
     f.facts["constant"] = constant;
-    ctx.add_fix(f, {{"op", "drop_columns"}, {"columns", {name}}, {"note", "the column carries no information"}}, false,
-                "whoever reads the output may expect the column (a batch id, a fixed unit); dropping it changes the layout");
+    nlohmann::ordered_json fix_step = {
+        {"op", "drop_columns"}, {"columns", {name}}, {"note", "the column carries no information"}};
+    co_await ctx.add_fix(f, std::move(fix_step), false,
+                         "whoever reads the output may expect the column (a batch id, a fixed unit); dropping it changes the layout");
     ctx.findings.push_back(std::move(f));
   }
 }
