@@ -41,16 +41,6 @@ namespace {
 // instead of failing half way.
 constexpr double kPeakBytesPerFileByte = 4.0;
 constexpr double kModuleMaximumBytes = 2147483648.0;
-// While work runs, each frame gives it three times what the rest of the
-// frame cost (drawing, and the browser's wait for the software-rendered
-// previous frame: about 45 ms here under SwiftShader), so about three
-// quarters of the time goes to the work, but never so much that a frame takes
-// longer than kLongestBusyFrameMs (a click on Cancel is seen within it).
-// 24 ms more than the workbench's own 12 ms per frame left work to 44% of the
-// time in headless Chromium.
-constexpr double kWorkShareOfBusyFrame = 0.75;
-constexpr double kLongestBusyFrameMs = 150.0;
-constexpr double kLeastExtraWorkMs = 24.0;
 
 struct PendingAction {
   int id = 0;
@@ -74,8 +64,6 @@ struct Shell {
   bool first_frame = true;
   bool table_seen = false;
   bool was_busy = false;
-  double last_frame_start = 0;  // emscripten_get_now() at the start of the previous frame
-  double last_extra_work = 0;   // ms of work that frame did before drawing
 };
 
 Shell* shell = nullptr;
@@ -123,19 +111,6 @@ void log_timings() {
   s.was_busy = busy;
 }
 
-// Runs queued work for this frame's share (see kWorkShareOfBusyFrame).
-void give_work_its_share() {
-  Shell& s = *shell;
-  const double start = emscripten_get_now();
-  const double overhead = s.last_frame_start > 0 ? std::max(0.0, start - s.last_frame_start - s.last_extra_work) : 0.0;
-  s.last_frame_start = start;
-  s.last_extra_work = 0;
-  if (!s.workbench->busy()) return;
-  const double share = overhead * kWorkShareOfBusyFrame / (1.0 - kWorkShareOfBusyFrame);
-  s.workbench->work_for(std::max(kLeastExtraWorkMs, std::min(share, kLongestBusyFrameMs - overhead)));
-  s.last_extra_work = emscripten_get_now() - start;
-}
-
 void draw_reading_progress() {
   Shell& s = *shell;
   if (s.reading_name.empty()) return;
@@ -163,7 +138,6 @@ void frame() {
     }
   }
   answer_actions();
-  give_work_its_share();
 
   ImGui_ImplOpenGL3_NewFrame();
   ImGui_ImplSDL2_NewFrame();

@@ -18,8 +18,6 @@ namespace wb = workbench;
 
 namespace {
 
-using Clock = std::chrono::steady_clock;
-
 std::string file_name_of(const std::string& path) {
   const size_t slash = path.find_last_of("/\\");
   return slash == std::string::npos ? path : path.substr(slash + 1);
@@ -59,11 +57,6 @@ void Workbench::open_recipe_path(const std::string& path) {
 }
 
 void Workbench::show_message(std::string text, bool is_error) { state_->say(std::move(text), is_error); }
-
-void Workbench::work_for(double milliseconds) {
-  state_->ask_for_missing_work();
-  state_->run_jobs_for(milliseconds);
-}
 
 // ---------------------------------------------------------------------------
 // Jobs

@@ -40,9 +40,6 @@ class Workbench {
   void open_recipe_path(const std::string& path);
   // A line in the status bar (the shells' own messages, e.g. a file too big).
   void show_message(std::string text, bool is_error);
-  // Runs waiting work for about this long before the next frame (a shell
-  // that draws slowly gives the work more time per drawn frame).
-  void work_for(double milliseconds);
   void run_command(Command command);
 
   // Test mode: one action of a script (see script_actions.md), run through

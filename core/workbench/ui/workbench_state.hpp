@@ -4,6 +4,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include <chrono>
 #include <cstdint>
 #include <functional>
 #include <memory>
@@ -23,6 +24,8 @@
 #include "workbench.hpp"
 
 namespace tamis::ui {
+
+using Clock = std::chrono::steady_clock;
 
 enum class SidePanel { column, findings, similar };
 
@@ -121,6 +124,8 @@ struct Workbench::State {
   void queue(std::unique_ptr<workbench::Job> job, std::function<void(workbench::Job&)> on_success,
              bool cancellable = true);
   void run_jobs_for(double milliseconds);
+  Clock::time_point last_frame_start;  // of the previous frame, for the share of work (workbench_frame.cpp)
+  double last_work_ms = 0;             // how long that frame's work ran
   void ask_for_missing_work();
   bool has_pending_work() const;
   void cancel_jobs();
