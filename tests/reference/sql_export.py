@@ -115,7 +115,20 @@ MUST_EXPORT = {
     'map_values ignore_case': DIALECTS, 'parse_number': ['duckdb', 'postgres', 'mysql'],
     'parse_number reject': ['duckdb', 'postgres', 'mysql'], 'split_column': DIALECTS,
     'collapse_spaces': DIALECTS, 'cast date': DIALECTS,
+    'trailing characters before a final line break': DIALECTS,
 }
+
+
+def line_break_ends(rng, cols):
+    """(name, steps, rows): trailing characters trimmed from values that end
+    in a line break, which they must keep (PCRE's $ also matches before a
+    final line break)."""
+    site, district = cols[:2]
+    steps = [{'op': 'trim', 'columns': [site], 'side': 'trailing', 'chars': '.'},
+             {'op': 'derive_column', 'name': 'trimmed', 'expr': f'TRIM({district})'}]
+    ends = ['a.\n', 'a..\n', 'a.\n.', '.\n', 'b \n', ' \n', '\t \n', 'b \n ', 'c\r\n', 'c.\r\n']
+    return [('trailing characters before a final line break', steps,
+             [[end, other] + [rng.choice(PIECES) for _ in cols[2:]] for end in ends for other in ends[::-1]])]
 
 
 def recipe_of(steps):
@@ -590,6 +603,8 @@ def main():
         for name, step in step_cases(rng, COLUMNS, PIECES[:20]):
             cases.append(('step ' + name, recipe_of([dict(step, note="checks '" + name + "'")]),
                           messy_table(rng, 40), name))
+        for name, steps, rows in line_break_ends(rng, COLUMNS):
+            cases.append(('steps %s %s' % (name, json.dumps(steps[0], ensure_ascii=False)), recipe_of(steps), rows, name))
         for n in range(RANDOM_RECIPES):
             catalogue = step_cases(rng, COLUMNS, PIECES[:20])
             row_steps = [c for c in catalogue if c[0] not in COLUMN_STEPS]

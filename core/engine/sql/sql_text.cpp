@@ -222,11 +222,13 @@ std::string trim_characters(Dialect dialect, const std::string& x, const std::u3
       return std::string(function) + std::string("(") + x + std::string(", ") + chars + ")";
     }
     case Dialect::mysql: {
-      // MySQL's TRIM removes a whole string, not a set of characters.
+      // MySQL's TRIM removes a whole string, not a set of characters. The
+      // end of the text is \z: PCRE's $ also matches before a final line
+      // break, which is not in every set.
       const std::string set = regex_class(dialect, characters) + "+";
-      const std::string pattern = side == "both"      ? std::string("^") + set + std::string("|") + set + "$"
+      const std::string pattern = side == "both"      ? std::string("^") + set + std::string("|") + set + "\\z"
                                   : side == "leading" ? std::string("^") + set
-                                                      : set + "$";
+                                                      : set + "\\z";
       return regex_replace_all(dialect, x, pattern, "");
     }
   }
