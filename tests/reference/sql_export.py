@@ -136,13 +136,14 @@ MORE_NUMBER_FORMS = [{'strip': '$', 'group_mark': ','},
 
 
 def number_forms(rng, cols):
-    """(name, steps, rows): parse_number in every number form, at each scale
-    and with on_error null and keep, over a table whose code column holds
-    every number piece."""
+    """(name, steps, rows): parse_number in every number form, each form at
+    two of the scale and on_error pairs below in turn, over a table whose
+    code column holds every number piece."""
     code = cols[2]
+    pairs = [(0, 'null'), (0, 'keep'), (1, 'keep'), (2, 'null'), (18, 'keep'), (18, 'null'), (2, 'keep'), (1, 'null')]
     cases = []
     for k, form in enumerate(NUMBER_FORMS + MORE_NUMBER_FORMS):
-        for scale, on_error in (((0, 'null'), (2, 'keep')) if k % 2 else ((1, 'keep'), (18, 'null'))):
+        for scale, on_error in (pairs[2 * k % len(pairs)], pairs[(2 * k + 1) % len(pairs)]):
             step = dict({'op': 'parse_number', 'column': code, 'scale': scale, 'on_error': on_error}, **form)
             rows = [[rng.choice(PIECES) if c != code else piece for c in cols] for piece in NUMBER_PIECES]
             cases.append(('parse_number', [step], rows))
