@@ -20,6 +20,8 @@ COLUMNS = ['site', 'note']
 
 # One recipe step per variant whose support can differ (the parameters that
 # change a step's SQL); every op of the recipe format appears at least once.
+# A list of steps is a recipe whose last step is the variant (it reads a
+# column an earlier step typed).
 VARIANTS = [
     ('trim', {'op': 'trim', 'columns': '*'}),
     ('trim with chars', {'op': 'trim', 'columns': ['site'], 'chars': '.', 'side': 'trailing'}),
@@ -53,6 +55,8 @@ VARIANTS = [
     ('derive_column integer arithmetic', {'op': 'derive_column', 'name': 'n', 'expr': '2 * 3 - 1'}),
     ('derive_column decimal division', {'op': 'derive_column', 'name': 'n', 'expr': '7 / 2'}),
     ('derive_column UPPER/LOWER', {'op': 'derive_column', 'name': 'n', 'expr': 'UPPER(site)'}),
+    ('keep_rows comparing decimals (after parse_number)',
+     [{'op': 'parse_number', 'column': 'site', 'scale': 2}, {'op': 'keep_rows', 'where': 'site > 3 OR site IS NULL'}]),
     ('keep_rows LIKE', {'op': 'keep_rows', 'where': "site LIKE 'a%' OR note NOT LIKE '_!%' ESCAPE '!'"}),
     ('keep_rows IS [NOT] TRUE / FALSE', {'op': 'keep_rows', 'where': "(site = 'a') IS NOT TRUE"}),
     ('derive_column SUBSTRING', {'op': 'derive_column', 'name': 'n', 'expr': 'SUBSTRING(site FROM 2 FOR 3)'}),
@@ -74,7 +78,7 @@ CANNOT = re.compile(r'cannot be exported to \w+: (.*)')
 
 def answer(work, step, dialect):
     recipe = {'tamis_recipe': 1, 'input': {'columns': [{'name': c, 'type': 'text'} for c in COLUMNS]},
-              'steps': [step]}
+              'steps': step if isinstance(step, list) else [step]}
     path = os.path.join(work, 'recipe.json')
     with open(path, 'w', encoding='utf-8') as f:
         json.dump(recipe, f, ensure_ascii=False)

@@ -418,6 +418,11 @@ TEST_CASE("unit_expr sql_support: per dialect, from the operators used") {
   CHECK(support("n / 2", Dialect::postgres) == SqlSupport::exact);
   CHECK(support("n / 2", Dialect::sqlite) == SqlSupport::approximate);
   CHECK(support("d + 1", Dialect::sqlite) == SqlSupport::approximate);
+  // SQLite holds a decimal as its text: only IS NULL reads it exactly.
+  CHECK(support("d IS NOT NULL", Dialect::sqlite) == SqlSupport::exact);
+  CHECK(support("d > 3", Dialect::sqlite) == SqlSupport::approximate);
+  CHECK(support("d > 3", Dialect::postgres) == SqlSupport::exact);
+  CHECK(support("COALESCE(d, n)", Dialect::sqlite) == SqlSupport::approximate);
   CHECK(support("d + 1", Dialect::duckdb) == SqlSupport::exact);
   CHECK(support("n + 1", Dialect::sqlite) == SqlSupport::exact);
   CHECK(support("TRIM('xy' FROM site)", Dialect::mysql) == SqlSupport::exact);

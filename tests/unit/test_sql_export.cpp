@@ -144,6 +144,23 @@ TEST_CASE("unit_sql_export: on_error reject stops the script, unless the recipe 
   CHECK(refused.error().message.find("(parse_number) cannot be exported to postgres: on_error reject") == 0);
 }
 
+TEST_CASE("unit_sql_export: parse_number on SQLite reads the value in stages, the reject check too") {
+  // The stages are common table expressions; the check that stops the script
+  // counts over the same stages (tests/reference/sql_export.py runs both on
+  // SQLite). A column named like the helpers pushes them to other names.
+  Recipe recipe = recipe_with(R"([{"op": "parse_number", "column": "site", "scale": 2, "group_mark": ",",
+      "on_error": "reject"}])");
+  recipe.input.columns[1].name = "Tamis_Number";
+  SqlExportOptions options;
+  options.dialect = Dialect::sqlite;
+  auto script = export_sql(recipe, options);
+  REQUIRE(script.ok());
+  CHECK(script->find("(failing_rows)\nWITH tamis_number__1 AS MATERIALIZED (") != std::string::npos);
+  CHECK(script->find("CREATE TABLE \"tamis_clean_step_1\" AS\nWITH tamis_number__1 AS MATERIALIZED (") !=
+        std::string::npos);
+  CHECK(script->find(" tamis_number_1 ") == std::string::npos);
+}
+
 TEST_CASE("unit_sql_export: approximate steps need --allow-approximate and carry a warning") {
   const Recipe recipe = recipe_with(R"([{"op": "change_case", "columns": ["site"], "to": "upper", "note": "shout"}])");
   SqlExportOptions options;

@@ -397,10 +397,11 @@ TEST_CASE("unit_steps_typed: SQL support is declared per dialect") {
   auto support = [](const json& step, Dialect d) { return parse_step(step, 0, kColumns).value()->sql_support(d); };
   for (const Dialect d : {Dialect::postgres, Dialect::mysql, Dialect::sqlite, Dialect::duckdb, Dialect::spark}) {
     // As tests/reference/sql_export.py checks them on the engines (Spark by
-    // golden files): parse_date in every dialect; parse_number and text to
-    // integer where regular expressions read the shapes (not SQLite), only
-    // with a scale declared ahead; text to date not yet. on_error reject is
-    // declared exact: the script stops as tamis run does (unit_sql_export).
+    // golden files): parse_date in every dialect; parse_number in every
+    // dialect with a scale declared ahead (regular expressions read the
+    // shapes, text functions in SQLite); text to integer where regular
+    // expressions read the shapes (not SQLite). on_error reject is declared
+    // exact: the script stops as tamis run does (unit_sql_export).
     const bool regex = d != Dialect::sqlite;
     CHECK(support(parse_date({"%Y-%m-%d", "%m/%d/%y"}), d) == SqlSupport::exact);
     CHECK(support(parse_date({"%Y-%m-%d %H:%M"}), d) == SqlSupport::unsupported);
@@ -408,7 +409,10 @@ TEST_CASE("unit_steps_typed: SQL support is declared per dialect") {
     CHECK(support(parse_date({"%Y-%m-%d"}, "reject"), d) == SqlSupport::exact);
     CHECK(support(cast("integer", {{"on_error", "reject"}}), d) == (regex ? SqlSupport::exact : SqlSupport::unsupported));
     CHECK(support(parse_number(), d) == SqlSupport::unsupported);
-    CHECK(support(parse_number({{"scale", 2}}), d) == (regex ? SqlSupport::exact : SqlSupport::unsupported));
+    CHECK(support(parse_number({{"scale", 2}}), d) == SqlSupport::exact);
+    CHECK(support(parse_number({{"scale", 0}, {"group_mark", "."}, {"decimal_mark", ","}, {"strip", "$ "},
+                                {"percent", true}, {"on_error", "keep"}}),
+                  d) == SqlSupport::exact);
     CHECK(support(cast("integer"), d) == (regex ? SqlSupport::exact : SqlSupport::unsupported));
     CHECK(support(cast("date"), d) == SqlSupport::exact);  // read as parse_date reads %Y-%m-%d
     CHECK(support({{"op", "cast"}, {"column", "n"}, {"to", "text"}}, d) == SqlSupport::exact);

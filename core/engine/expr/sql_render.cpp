@@ -2,7 +2,9 @@
 // others make the steps that use them refuse the export, so no script holds
 // an operator whose dialect semantics have not been checked against ours:
 //   text comparisons compare bytes (CAST AS BINARY in MySQL, COLLATE "C" in
-//   PostgreSQL), which in UTF-8 is code point order;
+//   PostgreSQL), which in UTF-8 is code point order; SQLite holds a decimal
+//   as its text, so there a decimal is compared as REAL, which sql_support
+//   calls approximate;
 //   integer + - * and ABS only where overflow is an error as in the engine
 //   (PostgreSQL, DuckDB, MySQL; SQLite switches to REAL, Spark wraps);
 //   division as exact NUMERIC rounded half away from zero in PostgreSQL,
@@ -46,7 +48,9 @@ class Renderer {
       a.push_back(std::move(*text));
     }
     auto key = [&](size_t i) {
-      return sql::exact_key(d_, a[i], p_.node(n.args[i]).type == VType::text ? Type::text : Type::integer);
+      const VType type = p_.node(n.args[i]).type;
+      if (type == VType::decimal && d_ == Dialect::sqlite) return std::string("CAST(") + a[i] + " AS REAL)";
+      return sql::exact_key(d_, a[i], type == VType::text ? Type::text : Type::integer);
     };
     const std::string no = n.negated ? "NOT " : "";
     switch (n.op) {

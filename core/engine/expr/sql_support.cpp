@@ -3,7 +3,10 @@
 // in MySQL, an explicit ESCAPE or none, and so on). An operator is marked
 // approximate in a dialect when no such rewriting gives our results:
 //   SQLite has no decimal type (REAL arithmetic), no DATE or BOOLEAN type,
-//     and its CAST to BOOLEAN/DECIMAL/DATE does not check its input;
+//     and its CAST to BOOLEAN/DECIMAL/DATE does not check its input; a
+//     decimal column there holds its canonical text (parse_number), which
+//     only IS [NOT] NULL reads exactly (comparisons read it as REAL,
+//     sql_render.cpp, and a CASE or COALESCE does not rescale it);
 //   DuckDB and Spark divide decimals into DOUBLE (or with their own scale
 //     rules), so a rounded quotient can differ in the last place;
 //   MySQL has no BOOLEAN text form (1/0) and its TRIM removes a whole string,
@@ -39,6 +42,9 @@ SqlSupport Expression::sql_support(Dialect dialect) const {
     const Node& n = p.nodes[pending.back()];
     pending.pop_back();
     for (uint32_t a : n.args) pending.push_back(a);
+    if (n.op != Op::is_null &&
+        std::any_of(n.args.begin(), n.args.end(), [&](uint32_t a) { return p.nodes[a].type == VType::decimal; }))
+      approximate_in({Dialect::sqlite});
     switch (n.op) {
       case Op::divide: approximate_in({Dialect::sqlite, Dialect::duckdb, Dialect::spark}); break;
       case Op::add:

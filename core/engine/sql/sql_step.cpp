@@ -92,13 +92,14 @@ std::vector<std::string> stop_unless_zero(const SqlContext& sql, std::string_vie
 
 Result<SqlStepText> conversion_sql(const SqlContext& sql, size_t c, const std::string& converted,
                                    const std::function<std::string(const std::string&)>& as_text,
-                                   OnError on_error, std::string_view op) {
+                                   OnError on_error, std::string_view op, std::string_view with) {
   SqlStepText out;
   const std::string x = sql.column(c);
   switch (on_error) {
-    case OnError::null: out.select = sql.select_replacing({{c, converted}}); break;
+    case OnError::null: out.select = std::string(with) + sql.select_replacing({{c, converted}}); break;
     case OnError::keep:
-      out.select = sql.select_replacing({{c, std::string("COALESCE(") + as_text(converted) + ", " + x + ")"}});
+      out.select =
+          std::string(with) + sql.select_replacing({{c, std::string("COALESCE(") + as_text(converted) + ", " + x + ")"}});
       break;
     case OnError::reject:
       if (sql.rejects_allowed)
@@ -106,9 +107,9 @@ Result<SqlStepText> conversion_sql(const SqlContext& sql, size_t c, const std::s
                            "which a SQL script cannot write");
       out.statements = stop_unless_zero(
           sql, "rejects",
-          std::string("SELECT COUNT(*) FROM ") + sql.from + std::string(" WHERE ") + x + std::string(" IS NOT NULL AND ") + converted + " IS NULL",
+          std::string(with) + std::string("SELECT COUNT(*) FROM ") + sql.from + std::string(" WHERE ") + x + std::string(" IS NOT NULL AND ") + converted + " IS NULL",
           std::string("step ") + std::to_string(sql.step_number) + " (" + std::string(op) + ") rejected rows, and input.max_rejects allows none");
-      out.select = sql.select_replacing({{c, converted}});
+      out.select = std::string(with) + sql.select_replacing({{c, converted}});
       break;
   }
   return out;

@@ -86,9 +86,11 @@ std::vector<std::string> stop_unless_zero(const SqlContext& sql, std::string_vie
 // converted value in its canonical text, for keep. reject: `tamis run` stops
 // when a row is rejected and input.max_rejects allows none (its default), and
 // so does the script; with rejected rows allowed the step is refused, since
-// no script writes a rejects file.
+// no script writes a rejects file. `with`, when given, is a WITH clause
+// ("WITH a AS (...), b AS (...)\n") that the statements start with, whose
+// last table `sql.from` names: the stages a converted value is computed in.
 Result<SqlStepText> conversion_sql(const SqlContext& sql, size_t c, const std::string& converted,
                                    const std::function<std::string(const std::string&)>& as_text,
-                                   OnError on_error, std::string_view op);
+                                   OnError on_error, std::string_view op, std::string_view with = {});
 
 }  // namespace tamis

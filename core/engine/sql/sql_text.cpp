@@ -222,11 +222,13 @@ std::string trim_characters(Dialect dialect, const std::string& x, const std::u3
       return std::string(function) + std::string("(") + x + std::string(", ") + chars + ")";
     }
     case Dialect::mysql: {
-      // MySQL's TRIM removes a whole string, not a set of characters.
+      // MySQL's TRIM removes a whole string, not a set of characters. The
+      // end of the text is \z: PCRE's $ also matches before a final line
+      // break, which is not in every set.
       const std::string set = regex_class(dialect, characters) + "+";
-      const std::string pattern = side == "both"      ? std::string("^") + set + std::string("|") + set + "$"
+      const std::string pattern = side == "both"      ? std::string("^") + set + std::string("|") + set + "\\z"
                                   : side == "leading" ? std::string("^") + set
-                                                      : set + "$";
+                                                      : set + "\\z";
       return regex_replace_all(dialect, x, pattern, "");
     }
   }
@@ -405,9 +407,10 @@ std::string scaled_number(Dialect dialect, const std::string& plain, int scale, 
   // DuckDB reads text into a DECIMAL wider than 18 digits (a 128-bit
   // integer) some thirty times slower than into DECIMAL(18, s), so text
   // short enough for 18 digits takes the narrow type, whose values always
-  // fit 64 bits at the scale.
+  // fit 64 bits at the scale. When the kept fraction fills 18 digits no
+  // text is that short (and DECIMAL(18, s) needs s <= 18).
   constexpr int kNarrow = 18;
-  if (dialect == Dialect::duckdb && integer_digits + kept_fraction > kNarrow)
+  if (dialect == Dialect::duckdb && integer_digits + kept_fraction > kNarrow && kept_fraction < kNarrow)
     converted = std::string("CASE WHEN ") + char_length(dialect, kept) + " <= " + std::to_string(kNarrow - kept_fraction) +
                 "\n                        THEN CAST(" + rounded(kNarrow) + " AS " + type + ")\n                        ELSE " +
                 converted + " END";
