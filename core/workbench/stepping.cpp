@@ -4,7 +4,6 @@
 
 #include "csv_writer.hpp"
 #include "dates.hpp"
-#include "job.hpp"
 
 namespace tamis::workbench {
 
@@ -36,23 +35,30 @@ Table as_text(const Table& table) {
   return out;
 }
 
-std::unique_ptr<BatchedRun> run_step(std::shared_ptr<const Step> step, size_t position, Table input,
-                                     size_t budget) {
+namespace {
+
+CompiledRecipe one_step_recipe(std::shared_ptr<const Step> step, size_t position) {
   CompiledRecipe recipe;
   recipe.steps.push_back({static_cast<int>(position), std::move(step), {}});
+  return recipe;
+}
+
+}  // namespace
+
+std::unique_ptr<BatchedRun> run_step(std::shared_ptr<const Step> step, size_t position, Table input,
+                                     size_t budget) {
   // Not below a few hundred rows: a batch has a fixed cost of its own.
   const size_t columns = std::max<size_t>(1, input.column_count());
-  return std::make_unique<BatchedRun>(std::move(recipe), std::move(input), std::max(budget, 256 * columns));
+  return std::make_unique<BatchedRun>(one_step_recipe(std::move(step), position), std::move(input),
+                                      std::max(budget, 256 * columns));
 }
 
 Result<Table> apply_step(std::shared_ptr<const Step> step, size_t position, const Table& input,
                          ChangeRecord& change) {
-  const auto run = run_step(std::move(step), position, input, kSliceCells);
-  for (WorkBudget budget; !run->advance(budget); budget = WorkBudget{}) {
-  }
-  if (run->error()) return *run->error();
-  change = std::move(run->changes().front());
-  return run->take_output();
+  std::vector<ChangeRecord> changes;
+  auto out = apply_recipe(one_step_recipe(std::move(step), position), input, &changes);
+  if (out) change = std::move(changes.front());
+  return out;
 }
 
 }  // namespace tamis::workbench
