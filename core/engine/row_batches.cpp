@@ -8,11 +8,7 @@ std::shared_ptr<const ColumnChunk> chunk_part(const Column& column, const Column
                                               size_t to) {
   if (column.type() == Type::text) {
     TextChunkBuilder builder;
-    builder.reserve(to - from, chunk.offsets[to] - chunk.offsets[from]);
-    for (size_t i = from; i < to; ++i) {
-      if (chunk.is_null(i)) builder.append_null();
-      else builder.append(chunk.text(i));
-    }
+    builder.append_rows(chunk, from, to);
     return builder.finish();
   }
   auto part = std::make_shared<ColumnChunk>();

@@ -18,8 +18,9 @@ std::optional<Type> type_from_name(std::string_view name) {
 }
 
 size_t ColumnChunk::memory_bytes() const {
-  return validity.capacity() * sizeof(uint64_t) + bytes.capacity() +
-         offsets.capacity() * sizeof(uint32_t) + numbers.capacity() * sizeof(int64_t);
+  return validity.capacity() * sizeof(uint64_t) + bytes.capacity() + offsets.capacity() * sizeof(uint32_t) +
+         numbers.capacity() * sizeof(int64_t) + changed.capacity() * sizeof(uint64_t) +
+         changed_before.capacity() * sizeof(uint32_t);
 }
 
 TextChunkBuilder::TextChunkBuilder() : chunk_(std::make_shared<ColumnChunk>()) {
@@ -45,6 +46,13 @@ void TextChunkBuilder::append_null() {
 
 void TextChunkBuilder::append_rows(const ColumnChunk& from, size_t begin, size_t end) {
   if (begin >= end) return;
+  if (from.is_delta()) {
+    for (size_t i = begin; i < end; ++i) {
+      if (from.is_null(i)) append_null();
+      else append(from.text(i));
+    }
+    return;
+  }
   auto& c = *chunk_;
   const size_t first_row = rows();
   const uint32_t start = from.offsets[begin];
@@ -62,7 +70,9 @@ void TextChunkBuilder::append_rows(const ColumnChunk& from, size_t begin, size_t
       if (from.is_null(i)) mark_null(first_row + (i - begin));
 }
 
-std::shared_ptr<const ColumnChunk> TextChunkBuilder::finish() {
+std::shared_ptr<const ColumnChunk> TextChunkBuilder::finish() { return finish_mutable(); }
+
+std::shared_ptr<ColumnChunk> TextChunkBuilder::finish_mutable() {
   auto& c = *chunk_;
   c.rows = c.offsets.size() - 1;
   if (nulls_ > 0) c.validity.resize((c.rows + 63) / 64, ~uint64_t{0});
@@ -70,11 +80,82 @@ std::shared_ptr<const ColumnChunk> TextChunkBuilder::finish() {
   // memory budget (1.5x the file) has no room for doubling slack.
   if (c.bytes.capacity() > c.bytes.size() + c.bytes.size() / 10 + 64) c.bytes.shrink_to_fit();
   if (c.offsets.capacity() > c.offsets.size() + c.offsets.size() / 10 + 16) c.offsets.shrink_to_fit();
-  std::shared_ptr<const ColumnChunk> out = std::move(chunk_);
+  std::shared_ptr<ColumnChunk> out = std::move(chunk_);
   chunk_ = std::make_shared<ColumnChunk>();
   chunk_->offsets.push_back(0);
   nulls_ = 0;
   return out;
+}
+
+TextDeltaBuilder::TextDeltaBuilder(std::shared_ptr<const ColumnChunk> input) : input_(std::move(input)) {}
+
+void TextDeltaBuilder::replace(size_t row, std::string_view value) {
+  rows_.push_back(static_cast<uint32_t>(row));
+  values_.append(value);
+}
+
+void TextDeltaBuilder::replace_with_null(size_t row) {
+  rows_.push_back(static_cast<uint32_t>(row));
+  values_.append_null();
+}
+
+// When the input is itself a delta, the rows it changed and the rows
+// replaced now are merged in row order (a replaced row takes its new value),
+// so that the result is a delta over the input's base.
+std::shared_ptr<ColumnChunk> TextDeltaBuilder::merged_values(std::shared_ptr<ColumnChunk> replaced,
+                                                             std::vector<uint64_t>& changed) const {
+  const ColumnChunk& in = *input_;
+  if (!in.is_delta()) return replaced;
+  for (size_t w = 0; w < changed.size(); ++w) changed[w] |= in.changed[w];
+  TextChunkBuilder merged;
+  merged.reserve(in.offsets.size() + rows_.size(), in.bytes.size() + replaced->bytes.size());
+  size_t next_replaced = 0, next_earlier = 0;
+  for (size_t w = 0; w < changed.size(); ++w) {
+    for (uint64_t bits = changed[w]; bits != 0; bits &= bits - 1) {
+      const size_t row = w * 64 + static_cast<size_t>(std::countr_zero(bits));
+      const bool earlier = in.row_changed(row);
+      const bool now = next_replaced < rows_.size() && rows_[next_replaced] == row;
+      const ColumnChunk& from = now ? *replaced : in;
+      const size_t j = now ? next_replaced++ : next_earlier;
+      if (from.own_is_null(j)) merged.append_null();
+      else merged.append(from.own_text(j));
+      next_earlier += earlier;
+    }
+  }
+  return merged.finish_mutable();
+}
+
+std::shared_ptr<const ColumnChunk> TextDeltaBuilder::finish() {
+  if (rows_.empty()) return input_;
+  const ColumnChunk& in = *input_;
+  std::vector<uint64_t> changed((in.rows + 63) / 64, 0);
+  for (const uint32_t row : rows_) changed[row >> 6] |= uint64_t{1} << (row & 63);
+  std::shared_ptr<ColumnChunk> values = merged_values(values_.finish_mutable(), changed);
+  std::shared_ptr<const ColumnChunk> base = in.is_delta() ? in.base : input_;
+  const size_t changed_rows = values->rows;
+  if (changed_rows * 2 > in.rows) {
+    TextChunkBuilder whole;
+    whole.reserve(in.rows, base->bytes.size() + values->bytes.size());
+    size_t j = 0;
+    for (size_t i = 0; i < in.rows; ++i) {
+      const bool own = (changed[i >> 6] >> (i & 63)) & 1;
+      const ColumnChunk& from = own ? *values : *base;
+      const size_t at = own ? j++ : i;
+      if (from.own_is_null(at)) whole.append_null();
+      else whole.append(from.own_text(at));
+    }
+    return whole.finish();
+  }
+  values->rows = in.rows;
+  values->base = std::move(base);
+  values->changed_before.resize(changed.size());
+  uint32_t before = 0;
+  for (size_t w = 0; w < changed.size(); ++w) {
+    values->changed_before[w] = before;
+    before += static_cast<uint32_t>(std::popcount(changed[w]));
+  }
+  values->changed = std::move(changed);
+  return values;
 }
 
 void Column::append_chunk(std::shared_ptr<const ColumnChunk> chunk) {
@@ -105,7 +186,7 @@ int64_t Column::number(size_t row) const {
 
 size_t Column::memory_bytes() const {
   size_t total = 0;
-  for (const auto& c : chunks_) total += c->memory_bytes();
+  for (const auto& c : chunks_) total += c->memory_bytes() + (c->is_delta() ? c->base->memory_bytes() : 0);
   return total;
 }
 
@@ -165,9 +246,14 @@ Status Table::append(const Table& batch) {
 size_t Table::memory_bytes() const {
   std::unordered_set<const ColumnChunk*> seen;
   size_t total = 0;
+  auto count_chunk = [&](const ColumnChunk& chunk) {
+    if (seen.insert(&chunk).second) total += chunk.memory_bytes();
+  };
   auto count = [&](const Column& col) {
-    for (size_t k = 0; k < col.chunk_count(); ++k)
-      if (seen.insert(&col.chunk(k)).second) total += col.chunk(k).memory_bytes();
+    for (size_t k = 0; k < col.chunk_count(); ++k) {
+      count_chunk(col.chunk(k));
+      if (col.chunk(k).is_delta()) count_chunk(*col.chunk(k).base);
+    }
   };
   for (const auto& c : columns_) count(*c);
   count(*lines_);

@@ -228,3 +228,104 @@ TEST_CASE("unit_table: memory_bytes counts a shared chunk once") {
 }
 
 }  // TEST_SUITE
+
+namespace {
+
+// The values of a chunk as read through its public accessors; "<NULL>" for NULL.
+std::vector<std::string> read_back(const ColumnChunk& chunk) {
+  std::vector<std::string> values;
+  for (size_t i = 0; i < chunk.rows; ++i) values.push_back(chunk.is_null(i) ? "<NULL>" : std::string(chunk.text(i)));
+  return values;
+}
+
+std::vector<std::string> numbered_values(size_t rows, const char* prefix) {
+  std::vector<std::string> values;
+  for (size_t i = 0; i < rows; ++i) values.push_back(numbered(prefix, i));
+  return values;
+}
+
+}  // namespace
+
+TEST_CASE("unit_table: a few replaced cells make a delta that reads like the whole chunk") {
+  const auto base = text_chunk(numbered_values(200, "v"));
+  TextDeltaBuilder builder(base);
+  builder.replace(0, "first");
+  builder.replace_with_null(63);
+  builder.replace(64, "");
+  builder.replace(199, "last");
+  const auto delta = builder.finish();
+  REQUIRE(delta->is_delta());
+  CHECK(delta->base == base);
+  std::vector<std::string> expected = numbered_values(200, "v");
+  expected[0] = "first";
+  expected[63] = "<NULL>";
+  expected[64] = "";
+  expected[199] = "last";
+  CHECK(read_back(*delta) == expected);
+  CHECK(delta->has_nulls());
+  CHECK_FALSE(base->has_nulls());
+  // Four changed rows of 200 cost a bitmap and their own bytes, not a copy.
+  CHECK(delta->memory_bytes() * 10 < base->memory_bytes());
+}
+
+TEST_CASE("unit_table: no replaced cell gives the input back, more than half replaced gives a whole chunk") {
+  const auto base = text_chunk(numbered_values(10, "v"));
+  CHECK(TextDeltaBuilder(base).finish() == base);
+  TextDeltaBuilder half(base), more(base);
+  for (size_t i = 0; i < 5; ++i) half.replace(i, "x");
+  for (size_t i = 0; i < 6; ++i) more.replace(i, "x");
+  CHECK(half.finish()->is_delta());
+  const auto whole = more.finish();
+  CHECK_FALSE(whole->is_delta());
+  CHECK(read_back(*whole) == std::vector<std::string>{"x", "x", "x", "x", "x", "x", "v6", "v7", "v8", "v9"});
+}
+
+TEST_CASE("unit_table: a delta over a delta is merged over the first base") {
+  TextChunkBuilder with_null;
+  for (const auto& v : numbered_values(130, "v")) with_null.append(v);
+  with_null.append_null();
+  const auto base = with_null.finish();  // 131 rows, the last one NULL
+  TextDeltaBuilder first(base);
+  first.replace(2, "a2");
+  first.replace_with_null(70);
+  first.replace(128, "a128");
+  const auto once = first.finish();
+  TextDeltaBuilder second(once);
+  second.replace(2, "b2");     // replaced again
+  second.replace(70, "b70");   // a NULL made by the first delta, filled
+  second.replace(100, "b100");
+  second.replace(130, "b130");  // a NULL of the base, filled
+  const auto twice = second.finish();
+  REQUIRE(twice->is_delta());
+  CHECK(twice->base == base);
+  std::vector<std::string> expected = numbered_values(130, "v");
+  expected.push_back("b130");
+  expected[2] = "b2";
+  expected[70] = "b70";
+  expected[100] = "b100";
+  expected[128] = "a128";
+  CHECK(read_back(*twice) == expected);
+  // has_nulls() is a quick test that may say yes: the base's NULL row is no longer read.
+  CHECK(twice->has_nulls());
+  // Appending rows of a delta copies values, never the delta's own arrays.
+  TextChunkBuilder copy;
+  copy.append_rows(*twice, 1, 4);
+  copy.append_rows(*twice, 127, 131);
+  CHECK(read_back(*copy.finish()) == std::vector<std::string>{"v1", "b2", "v3", "v127", "a128", "v129", "b130"});
+}
+
+TEST_CASE("unit_table: memory_bytes counts a delta's base once") {
+  const auto base = text_chunk(numbered_values(1000, "value "));
+  TextDeltaBuilder builder(base);
+  builder.replace(10, "changed");
+  const auto delta = builder.finish();
+  auto before = std::make_shared<Column>(Type::text);
+  before->append_chunk(base);
+  auto after = std::make_shared<Column>(Type::text);
+  after->append_chunk(delta);
+  const ColumnPtr lines = line_column(2, 1000);
+  const Table one = make({"a"}, {before}, lines);
+  const Table both = make({"a", "b"}, {before, after}, lines);
+  CHECK(after->memory_bytes() == delta->memory_bytes() + base->memory_bytes());
+  CHECK(both.memory_bytes() == one.memory_bytes() + delta->memory_bytes());
+}

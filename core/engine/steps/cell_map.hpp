@@ -1,8 +1,8 @@
 // The shared loop of the steps that rewrite text cells one by one (trim,
 // collapse_spaces, change_case, normalize_unicode, replace_text, map_values,
-// to_null). A chunk in which no cell changes is shared with the input, not
-// copied, so a step that touches few rows costs little memory; in a chunk
-// that changes, the runs of unchanged rows are copied a run at a time.
+// to_null). A chunk in which no cell changes is shared with the input; one in
+// which few change is stored as a delta over it (table.hpp), so a step that
+// touches few rows costs little memory.
 #pragma once
 
 #include <span>
@@ -24,35 +24,22 @@ ColumnPtr map_text_column(const Column& column, const std::string& name, ChangeR
   std::string replacement;
   for (size_t k = 0; k < column.chunk_count(); ++k) {
     const ColumnChunk& chunk = column.chunk(k);
-    TextChunkBuilder builder;
-    size_t copied = 0;  // rows [0, copied) are already in builder
-    bool changed = false;
+    TextDeltaBuilder rewritten(column.chunk_ptr(k));
     for (size_t i = 0; i < chunk.rows; ++i) {
       if (chunk.is_null(i)) continue;
       const std::string_view value = chunk.text(i);
       replacement.clear();
       const CellResult r = f(value, replacement);
       if (r == CellResult::unchanged) continue;
-      if (!changed) {
-        builder.reserve(chunk.rows, chunk.bytes.size());
-        changed = true;
-      }
-      builder.append_rows(chunk, copied, i);
       if (r == CellResult::null) {
-        builder.append_null();
+        rewritten.replace_with_null(i);
         change.note_change(name, value, "NULL");
       } else {
-        builder.append(replacement);
+        rewritten.replace(i, replacement);
         change.note_change(name, value, replacement);
       }
-      copied = i + 1;
     }
-    if (!changed) {
-      out->append_chunk(column.chunk_ptr(k));
-      continue;
-    }
-    builder.append_rows(chunk, copied, chunk.rows);
-    out->append_chunk(builder.finish());
+    out->append_chunk(rewritten.finish());
   }
   return out;
 }

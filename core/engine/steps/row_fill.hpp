@@ -1,6 +1,7 @@
 // What fill_from_group and carry_forward share: rebuilding a column with
 // some of its NULL cells filled. A chunk in which nothing is filled is
-// shared with the input, not copied.
+// shared with the input; a text chunk in which few are is stored as a delta
+// over it (table.hpp).
 #pragma once
 
 #include <optional>
@@ -33,28 +34,21 @@ ColumnPtr fill_nulls(const Column& column, const std::string& name, ChangeRecord
       out->append_chunk(column.chunk_ptr(k));
       continue;
     }
+    if (column.type() == Type::text) {
+      TextDeltaBuilder filled(column.chunk_ptr(k));
+      for (const auto& [i, fill] : fills) {
+        const std::string_view value = single_key_cell(fill).text;
+        filled.replace(i, value);
+        change.note_change(name, "NULL", value);
+      }
+      out->append_chunk(filled.finish());
+      continue;
+    }
     size_t next = 0;  // the next entry of fills
     auto fill_at = [&](size_t i) -> const std::string* {
       if (next < fills.size() && fills[next].first == i) return &fills[next++].second;
       return nullptr;
     };
-    if (column.type() == Type::text) {
-      TextChunkBuilder builder;
-      builder.reserve(chunk.rows, chunk.bytes.size() + fills.size() * 16);
-      for (size_t i = 0; i < chunk.rows; ++i) {
-        if (const std::string* fill = fill_at(i)) {
-          const std::string_view value = single_key_cell(*fill).text;
-          builder.append(value);
-          change.note_change(name, "NULL", value);
-        } else if (chunk.is_null(i)) {
-          builder.append_null();
-        } else {
-          builder.append(chunk.text(i));
-        }
-      }
-      out->append_chunk(builder.finish());
-      continue;
-    }
     TypedChunkBuilder builder;
     builder.reserve(chunk.rows);
     for (size_t i = 0; i < chunk.rows; ++i) {

@@ -15,35 +15,37 @@ size_t count_kept(const std::vector<uint8_t>& keep, size_t first, size_t rows) {
   return kept;
 }
 
-std::shared_ptr<const ColumnChunk> select_chunk(const ColumnChunk& chunk, bool is_text, const uint8_t* keep,
-                                                size_t kept) {
+size_t kept_text_bytes(const ColumnChunk& chunk, const uint8_t* keep) {
+  if (chunk.is_delta()) return chunk.text_bytes();
+  size_t bytes = 0;
+  for (size_t i = 0; i < chunk.rows; ++i)
+    if (keep[i]) bytes += chunk.offsets[i + 1] - chunk.offsets[i];
+  return bytes;
+}
+
+std::shared_ptr<const ColumnChunk> select_text_chunk(const ColumnChunk& chunk, const uint8_t* keep, size_t kept) {
+  TextChunkBuilder builder;
+  builder.reserve(kept, kept_text_bytes(chunk, keep));
+  // Runs of kept rows are copied with one append each.
+  for (size_t i = 0; i < chunk.rows;) {
+    if (!keep[i]) {
+      ++i;
+      continue;
+    }
+    size_t j = i;
+    while (j < chunk.rows && keep[j]) ++j;
+    builder.append_rows(chunk, i, j);
+    i = j;
+  }
+  return builder.finish();
+}
+
+std::shared_ptr<const ColumnChunk> select_typed_chunk(const ColumnChunk& chunk, const uint8_t* keep, size_t kept) {
   auto out = std::make_shared<ColumnChunk>();
   out->rows = kept;
-  if (is_text) {
-    size_t kept_bytes = 0;
-    for (size_t i = 0; i < chunk.rows; ++i)
-      if (keep[i]) kept_bytes += chunk.offsets[i + 1] - chunk.offsets[i];
-    out->bytes.reserve(kept_bytes);
-    out->offsets.resize(kept + 1);
-    uint32_t* offset = out->offsets.data() + 1;
-    // Runs of kept rows are copied with one append each.
-    for (size_t i = 0; i < chunk.rows;) {
-      if (!keep[i]) {
-        ++i;
-        continue;
-      }
-      size_t j = i;
-      while (j < chunk.rows && keep[j]) ++j;
-      const uint32_t base = static_cast<uint32_t>(out->bytes.size()) - chunk.offsets[i];
-      out->bytes.append(chunk.bytes, chunk.offsets[i], chunk.offsets[j] - chunk.offsets[i]);
-      for (size_t r = i; r < j; ++r) *offset++ = chunk.offsets[r + 1] + base;
-      i = j;
-    }
-  } else {
-    out->numbers.reserve(kept);
-    for (size_t i = 0; i < chunk.rows; ++i)
-      if (keep[i]) out->numbers.push_back(chunk.numbers[i]);
-  }
+  out->numbers.reserve(kept);
+  for (size_t i = 0; i < chunk.rows; ++i)
+    if (keep[i]) out->numbers.push_back(chunk.numbers[i]);
   if (chunk.has_nulls()) {
     std::vector<uint64_t> validity((kept + 63) / 64, 0);
     size_t at = 0;
@@ -67,7 +69,9 @@ ColumnPtr select_column(const Column& column, const std::vector<uint8_t>& keep) 
     const size_t first = column.chunk_start(k);
     const size_t kept = count_kept(keep, first, chunk.rows);
     if (kept == chunk.rows) out->append_chunk(column.chunk_ptr(k));
-    else if (kept > 0) out->append_chunk(select_chunk(chunk, column.type() == Type::text, keep.data() + first, kept));
+    else if (kept > 0)
+      out->append_chunk(column.type() == Type::text ? select_text_chunk(chunk, keep.data() + first, kept)
+                                                    : select_typed_chunk(chunk, keep.data() + first, kept));
   }
   return out;
 }

@@ -89,7 +89,7 @@ RowKeys::RowKeys(const Table& batch, std::span<const size_t> columns, KeyCompare
     if (!is_text.back()) estimate += rows * (1 + sizeof(int64_t));
     else
       for (size_t k = 0; k < column.chunk_count(); ++k)
-        estimate += column.chunk(k).rows * 2 + column.chunk(k).bytes.size();
+        estimate += column.chunk(k).rows * 2 + column.chunk(k).text_bytes();
   }
   // Written through a raw buffer: this loop runs for every cell compared.
   reserve(estimate);

@@ -37,7 +37,7 @@ class SplitColumn final : public Step {
     for (size_t k = 0; k < source.chunk_count(); ++k) {
       const ColumnChunk& chunk = source.chunk(k);
       std::vector<TextChunkBuilder> builders(parts);
-      for (auto& b : builders) b.reserve(chunk.rows, chunk.bytes.size() / parts);
+      for (auto& b : builders) b.reserve(chunk.rows, chunk.text_bytes() / parts);
       for (size_t i = 0; i < chunk.rows; ++i) {
         if (chunk.is_null(i)) {
           for (auto& b : builders) b.append_null();

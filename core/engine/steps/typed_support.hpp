@@ -132,7 +132,7 @@ Result<Table> convert_text_column(const Table& batch, size_t c, Type to, int sca
     const ColumnChunk& chunk = column.chunk(k);
     TextChunkBuilder text;
     TypedChunkBuilder typed;
-    if (stays_text) text.reserve(chunk.rows, chunk.bytes.size());
+    if (stays_text) text.reserve(chunk.rows, chunk.text_bytes());
     else typed.reserve(chunk.rows);
     for (size_t i = 0; i < chunk.rows; ++i, ++row, lines.next()) {
       if (chunk.is_null(i)) {
