@@ -1,6 +1,7 @@
 #include "table.hpp"
 
 #include <algorithm>
+#include <functional>
 #include <unordered_set>
 
 namespace tamis {
@@ -20,7 +21,16 @@ std::optional<Type> type_from_name(std::string_view name) {
 size_t ColumnChunk::memory_bytes() const {
   return validity.capacity() * sizeof(uint64_t) + bytes.capacity() + offsets.capacity() * sizeof(uint32_t) +
          numbers.capacity() * sizeof(int64_t) + changed.capacity() * sizeof(uint64_t) +
-         changed_before.capacity() * sizeof(uint32_t);
+         changed_before.capacity() * sizeof(uint32_t) + codes.capacity() * sizeof(uint16_t);
+}
+
+size_t ColumnChunk::text_bytes() const {
+  switch (layout) {
+    case TextLayout::plain: return bytes.size();
+    case TextLayout::delta: return bytes.size() + base->text_bytes();
+    case TextLayout::dictionary: return offsets.size() > 1 ? bytes.size() / (offsets.size() - 1) * rows : 0;
+  }
+  return bytes.size();
 }
 
 TextChunkBuilder::TextChunkBuilder() : chunk_(std::make_shared<ColumnChunk>()) {
@@ -46,7 +56,7 @@ void TextChunkBuilder::append_null() {
 
 void TextChunkBuilder::append_rows(const ColumnChunk& from, size_t begin, size_t end) {
   if (begin >= end) return;
-  if (from.is_delta()) {
+  if (!from.is_plain()) {
     for (size_t i = begin; i < end; ++i) {
       if (from.is_null(i)) append_null();
       else append(from.text(i));
@@ -84,6 +94,41 @@ std::shared_ptr<ColumnChunk> TextChunkBuilder::finish_mutable() {
   chunk_ = std::make_shared<ColumnChunk>();
   chunk_->offsets.push_back(0);
   nulls_ = 0;
+  return out;
+}
+
+// Distinct values are found with a small open-addressing hash table of
+// codes; the search stops once the dictionary could no longer be smaller
+// than the plain chunk (half as many distinct values as rows).
+std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const ColumnChunk> chunk) {
+  const ColumnChunk& in = *chunk;
+  const size_t limit = std::min<size_t>(in.rows / 2, UINT16_MAX);
+  if (!in.is_plain() || limit == 0) return chunk;
+  size_t slots = 16;
+  while (slots < 2 * limit) slots *= 2;
+  constexpr uint16_t kEmpty = UINT16_MAX;
+  std::vector<uint16_t> table(slots, kEmpty);
+  TextChunkBuilder dictionary;
+  std::vector<uint16_t> codes(in.rows);
+  const std::hash<std::string_view> hash;
+  for (size_t i = 0; i < in.rows; ++i) {
+    const std::string_view value = in.own_text(i);  // "" for NULL rows
+    size_t slot = hash(value) & (slots - 1);
+    while (table[slot] != kEmpty && dictionary.chunk_->own_text(table[slot]) != value) slot = (slot + 1) & (slots - 1);
+    if (table[slot] == kEmpty) {
+      if (dictionary.rows() == limit) return chunk;
+      table[slot] = static_cast<uint16_t>(dictionary.rows());
+      dictionary.append(value);
+    }
+    codes[i] = table[slot];
+  }
+  const size_t dictionary_bytes = dictionary.bytes() + (dictionary.rows() + 1) * sizeof(uint32_t) + in.rows * sizeof(uint16_t);
+  if (dictionary_bytes >= in.bytes.size() + in.offsets.size() * sizeof(uint32_t)) return chunk;
+  std::shared_ptr<ColumnChunk> out = dictionary.finish_mutable();
+  out->rows = in.rows;
+  out->validity = in.validity;
+  out->codes = std::move(codes);
+  out->layout = TextLayout::dictionary;
   return out;
 }
 
@@ -139,14 +184,14 @@ std::shared_ptr<const ColumnChunk> TextDeltaBuilder::finish() {
     size_t j = 0;
     for (size_t i = 0; i < in.rows; ++i) {
       const bool own = (changed[i >> 6] >> (i & 63)) & 1;
-      const ColumnChunk& from = own ? *values : *base;
-      const size_t at = own ? j++ : i;
-      if (from.own_is_null(at)) whole.append_null();
-      else whole.append(from.own_text(at));
+      if (own ? values->own_is_null(j) : base->is_null(i)) whole.append_null();
+      else whole.append(own ? values->own_text(j) : base->text(i));
+      j += own;
     }
     return whole.finish();
   }
   values->rows = in.rows;
+  values->layout = TextLayout::delta;
   values->base = std::move(base);
   values->changed_before.resize(changed.size());
   uint32_t before = 0;

@@ -19,6 +19,12 @@
 // most half of its rows changed (past that a whole chunk is smaller and reads
 // faster), and never stacks a delta on a delta: it merges them over the
 // first base, so a read looks through one level at most.
+//
+// A text chunk may also keep each distinct value once (a dictionary): one
+// 16-bit code per row. The workbench stores the file it loads so
+// (shared_repeated_values), because extracts repeat a few names, codes and
+// dates over millions of rows; a streaming run does not, since its batches
+// do not stay in memory. A NULL row's code is that of the empty text.
 #pragma once
 
 #include <bit>
@@ -45,8 +51,11 @@ std::optional<Type> type_from_name(std::string_view name);
 //   date     days since 1970-01-01 (proleptic Gregorian)
 //   boolean  0 or 1
 //
-// Code that reads validity, offsets or bytes directly must first check
-// is_delta(): in a delta they index the changed rows only.
+// Code that reads offsets or bytes directly must first check is_plain(): in
+// a delta they hold the changed rows only, in a dictionary the distinct
+// values. validity is per row except in a delta.
+enum class TextLayout : uint8_t { plain, delta, dictionary };
+
 struct ColumnChunk {
   size_t rows = 0;
   std::vector<uint64_t> validity;
@@ -59,8 +68,12 @@ struct ColumnChunk {
   std::shared_ptr<const ColumnChunk> base;
   std::vector<uint64_t> changed;
   std::vector<uint32_t> changed_before;
+  // Dictionary only: row i's value is value codes[i] of bytes and offsets.
+  std::vector<uint16_t> codes;
+  TextLayout layout = TextLayout::plain;
 
-  bool is_delta() const { return base != nullptr; }
+  bool is_plain() const { return layout == TextLayout::plain; }
+  bool is_delta() const { return layout == TextLayout::delta; }
   bool has_nulls() const { return !validity.empty() || (base && base->has_nulls()); }
   // A delta's base is never a delta, so one look through it is enough.
   bool is_null(size_t i) const {
@@ -68,7 +81,7 @@ struct ColumnChunk {
     return own_is_null(i);
   }
   std::string_view text(size_t i) const {
-    if (is_delta()) [[unlikely]] return row_changed(i) ? own_text(changed_rank(i)) : base->own_text(i);
+    if (!is_plain()) [[unlikely]] return indirect_text(i);
     return own_text(i);
   }
   // Value j of the chunk's own arrays (in a delta: its j-th changed row).
@@ -77,11 +90,15 @@ struct ColumnChunk {
     return std::string_view(bytes.data() + offsets[j], offsets[j + 1] - offsets[j]);
   }
   bool row_changed(size_t i) const { return (changed[i >> 6] >> (i & 63)) & 1; }
-  // The text bytes the chunk's values add up to (a size estimate for builders).
-  size_t text_bytes() const { return bytes.size() + (base ? base->bytes.size() : 0); }
+  // About the text bytes the chunk's values add up to (an estimate for builders).
+  size_t text_bytes() const;
   size_t memory_bytes() const;
 
  private:
+  std::string_view indirect_text(size_t i) const {
+    if (is_delta()) return row_changed(i) ? own_text(changed_rank(i)) : base->text(i);
+    return own_text(codes[i]);
+  }
   size_t changed_rank(size_t i) const {
     return changed_before[i >> 6] + static_cast<size_t>(std::popcount(changed[i >> 6] & ((uint64_t{1} << (i & 63)) - 1)));
   }
@@ -107,6 +124,7 @@ class TextChunkBuilder {
 
  private:
   friend class TextDeltaBuilder;
+  friend std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const ColumnChunk> chunk);
   std::shared_ptr<ColumnChunk> finish_mutable();
   void mark_null(size_t row);
 
@@ -116,6 +134,10 @@ class TextChunkBuilder {
 
 // Rewrites some cells of one text chunk, in increasing row order, and
 // returns the smaller of a delta and a whole chunk (see above).
+// The chunk with its distinct values kept once, when that is smaller; else
+// the chunk itself. Plain text chunks only.
+std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const ColumnChunk> chunk);
+
 class TextDeltaBuilder {
  public:
   explicit TextDeltaBuilder(std::shared_ptr<const ColumnChunk> input);

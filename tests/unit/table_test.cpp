@@ -329,3 +329,41 @@ TEST_CASE("unit_table: memory_bytes counts a delta's base once") {
   CHECK(after->memory_bytes() == delta->memory_bytes() + base->memory_bytes());
   CHECK(both.memory_bytes() == one.memory_bytes() + delta->memory_bytes());
 }
+
+TEST_CASE("unit_table: a chunk of repeated values keeps each once and reads the same") {
+  TextChunkBuilder builder;
+  const std::vector<std::string> names = {"Rowan", "Ginkgo", "", "Hornbeam"};
+  for (size_t i = 0; i < 400; ++i) {
+    if (i % 7 == 3) builder.append_null();
+    else builder.append(names[i % names.size()]);
+  }
+  const auto plain = builder.finish();
+  const auto shared = shared_repeated_values(plain);
+  REQUIRE(shared != plain);
+  CHECK(shared->layout == TextLayout::dictionary);
+  CHECK(read_back(*shared) == read_back(*plain));
+  CHECK(shared->text(3).empty());  // a NULL row reads as empty text, as in a plain chunk
+  CHECK(shared->memory_bytes() * 2 < plain->memory_bytes());
+  // A delta over a dictionary, and rows copied out of both.
+  TextDeltaBuilder delta(shared);
+  delta.replace(1, "Field maple");
+  delta.replace_with_null(2);
+  const auto changed = delta.finish();
+  REQUIRE(changed->is_delta());
+  std::vector<std::string> expected = read_back(*plain);
+  expected[1] = "Field maple";
+  expected[2] = "<NULL>";
+  CHECK(read_back(*changed) == expected);
+  TextChunkBuilder copy;
+  copy.append_rows(*shared, 0, 5);
+  copy.append_rows(*changed, 0, 3);
+  CHECK(read_back(*copy.finish()) ==
+        std::vector<std::string>{"Rowan", "Ginkgo", "", "<NULL>", "Rowan", "Rowan", "Field maple", "<NULL>"});
+}
+
+TEST_CASE("unit_table: a chunk of mostly distinct values stays plain") {
+  const auto distinct = text_chunk(numbered_values(100, "tree "));
+  CHECK(shared_repeated_values(distinct) == distinct);
+  const auto tiny = text_chunk({"one"});
+  CHECK(shared_repeated_values(tiny) == tiny);
+}

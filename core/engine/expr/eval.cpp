@@ -249,7 +249,7 @@ class Evaluator {
   Status column(const Node& node, Vec& out, bool values) {
     const Slice& s = slices_[static_cast<size_t>(node.number)];
     const ColumnChunk& chunk = *s.chunk;
-    if (chunk.is_delta()) return delta_column(chunk, s.offset, out, values);
+    if (!chunk.is_plain()) return indirect_column(chunk, s.offset, out, values);
     if (chunk.has_nulls()) {
       uint8_t* valid = own_validity(out);
       const uint64_t* bits = chunk.validity.data();
@@ -270,9 +270,9 @@ class Evaluator {
     return Ok{};
   }
 
-  // A delta chunk (table.hpp) has no per-row arrays to point into; it is
-  // read row by row. Deltas hold text only (TextDeltaBuilder).
-  Status delta_column(const ColumnChunk& chunk, size_t offset, Vec& out, bool values) {
+  // A delta or dictionary chunk (table.hpp) has no per-row text to point
+  // into; it is read row by row. Only text chunks have these layouts.
+  Status indirect_column(const ColumnChunk& chunk, size_t offset, Vec& out, bool values) {
     if (chunk.has_nulls()) {
       uint8_t* valid = own_validity(out);
       for (size_t i = 0; i < n_; ++i) valid[i] = !chunk.is_null(offset + i);

@@ -16,7 +16,7 @@ size_t count_kept(const std::vector<uint8_t>& keep, size_t first, size_t rows) {
 }
 
 size_t kept_text_bytes(const ColumnChunk& chunk, const uint8_t* keep) {
-  if (chunk.is_delta()) return chunk.text_bytes();
+  if (!chunk.is_plain()) return chunk.text_bytes();
   size_t bytes = 0;
   for (size_t i = 0; i < chunk.rows; ++i)
     if (keep[i]) bytes += chunk.offsets[i + 1] - chunk.offsets[i];
