@@ -46,18 +46,18 @@ class ValueCounter {
 
   ValueCounter() : slots_(1024) {}
 
-  void add(std::string_view v) {
+  void add(std::string_view v, uint32_t count = 1) {
     uint64_t h = XXH3_64bits(v.data(), v.size());
     h += h == 0;
     for (size_t i = h & (slots_.size() - 1);; i = (i + 1) & (slots_.size() - 1)) {
       Slot& s = slots_[i];
       if (s.hash == 0) {
-        s = {h, v.data(), static_cast<uint32_t>(v.size()), 1};
+        s = {h, v.data(), static_cast<uint32_t>(v.size()), count};
         if (++used_ * 2 > slots_.size()) grow();
         return;
       }
       if (s.hash == h && s.size == v.size() && std::memcmp(s.data, v.data(), v.size()) == 0) {
-        ++s.count;
+        s.count += count;
         return;
       }
     }
@@ -284,9 +284,18 @@ bool TableProfiler::step(size_t budget) {
         chunk_ptr = st.canonical.back().get();
       }
       const ColumnChunk& chunk = *chunk_ptr;
-      for (size_t i = 0; i < chunk.rows; ++i) {
-        if (chunk.is_null(i)) ++out.nulls;
-        else st.counter.add(chunk.text(i));
+      if (chunk.layout == TextLayout::dictionary) {
+        uint64_t non_null = 0;
+        for (const DictionaryCount& c : count_dictionary_values(chunk)) {
+          st.counter.add(chunk.own_text(c.code), c.count);
+          non_null += c.count;
+        }
+        out.nulls += chunk.rows - non_null;
+      } else {
+        for (size_t i = 0; i < chunk.rows; ++i) {
+          if (chunk.is_null(i)) ++out.nulls;
+          else st.counter.add(chunk.text(i));
+        }
       }
       work_done_ += chunk.rows;
       budget -= std::min(budget, chunk.rows);

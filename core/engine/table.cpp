@@ -132,6 +132,33 @@ std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const 
   return out;
 }
 
+Table with_repeated_values_shared(const Table& table) {
+  Table out = table;
+  for (size_t c = 0; c < table.column_count(); ++c) {
+    const Column& column = table.column(c);
+    if (column.type() != Type::text) continue;
+    auto shared = std::make_shared<Column>(Type::text);
+    for (size_t k = 0; k < column.chunk_count(); ++k) shared->append_chunk(shared_repeated_values(column.chunk_ptr(k)));
+    out = out.with_column(c, std::move(shared));
+  }
+  return out;
+}
+
+std::vector<DictionaryCount> count_dictionary_values(const ColumnChunk& chunk) {
+  std::vector<DictionaryCount> counts(chunk.offsets.size() - 1);
+  for (size_t i = chunk.rows; i-- > 0;) {
+    if (chunk.own_is_null(i)) continue;
+    DictionaryCount& c = counts[chunk.codes[i]];
+    ++c.count;
+    c.first_row = static_cast<uint32_t>(i);
+  }
+  for (size_t code = 0; code < counts.size(); ++code) counts[code].code = static_cast<uint32_t>(code);
+  std::erase_if(counts, [](const DictionaryCount& c) { return c.count == 0; });
+  std::sort(counts.begin(), counts.end(),
+            [](const DictionaryCount& a, const DictionaryCount& b) { return a.first_row < b.first_row; });
+  return counts;
+}
+
 TextDeltaBuilder::TextDeltaBuilder(std::shared_ptr<const ColumnChunk> input) : input_(std::move(input)) {}
 
 void TextDeltaBuilder::replace(size_t row, std::string_view value) {

@@ -81,8 +81,8 @@ struct ColumnChunk {
     return own_is_null(i);
   }
   std::string_view text(size_t i) const {
-    if (!is_plain()) [[unlikely]] return indirect_text(i);
-    return own_text(i);
+    if (is_delta()) [[unlikely]] return row_changed(i) ? own_text(changed_rank(i)) : base->stored_text(i);
+    return stored_text(i);
   }
   // Value j of the chunk's own arrays (in a delta: its j-th changed row).
   bool own_is_null(size_t j) const { return !validity.empty() && !((validity[j >> 6] >> (j & 63)) & 1); }
@@ -95,9 +95,9 @@ struct ColumnChunk {
   size_t memory_bytes() const;
 
  private:
-  std::string_view indirect_text(size_t i) const {
-    if (is_delta()) return row_changed(i) ? own_text(changed_rank(i)) : base->text(i);
-    return own_text(codes[i]);
+  // Row i of a plain or dictionary chunk.
+  std::string_view stored_text(size_t i) const {
+    return layout == TextLayout::dictionary ? own_text(codes[i]) : own_text(i);
   }
   size_t changed_rank(size_t i) const {
     return changed_before[i >> 6] + static_cast<size_t>(std::popcount(changed[i >> 6] & ((uint64_t{1} << (i & 63)) - 1)));
@@ -137,6 +137,15 @@ class TextChunkBuilder {
 // The chunk with its distinct values kept once, when that is smaller; else
 // the chunk itself. Plain text chunks only.
 std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const ColumnChunk> chunk);
+
+// How often each value of a dictionary chunk occurs in its non-NULL rows, in
+// the order of their first such row: counting codes, not hashing text.
+struct DictionaryCount {
+  uint32_t code = 0;       // value `code` of the chunk's own arrays (own_text)
+  uint32_t count = 0;
+  uint32_t first_row = 0;  // in the chunk
+};
+std::vector<DictionaryCount> count_dictionary_values(const ColumnChunk& chunk);
 
 class TextDeltaBuilder {
  public:
@@ -226,5 +235,8 @@ class Table {
   std::vector<ColumnPtr> columns_;
   ColumnPtr lines_;
 };
+
+// The table with shared_repeated_values applied to every text chunk.
+Table with_repeated_values_shared(const Table& table);
 
 }  // namespace tamis

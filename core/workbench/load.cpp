@@ -39,23 +39,6 @@ Result<std::unique_ptr<LoadJob>> LoadJob::start(std::unique_ptr<ByteSource> sour
 
 LoadJob::~LoadJob() = default;
 
-namespace {
-
-// The loaded table stays in memory for the whole session, so each batch's
-// columns keep their repeated values once (a dictionary, table.hpp).
-Table with_repeated_values_shared(const Table& batch) {
-  Table out = batch;
-  for (size_t c = 0; c < batch.column_count(); ++c) {
-    const Column& column = batch.column(c);
-    auto shared = std::make_shared<Column>(column.type(), column.scale());
-    for (size_t k = 0; k < column.chunk_count(); ++k) shared->append_chunk(shared_repeated_values(column.chunk_ptr(k)));
-    out = out.with_column(c, std::move(shared));
-  }
-  return out;
-}
-
-}  // namespace
-
 bool LoadJob::step(size_t budget) {
   State& s = *state_;
   if (s.done || error_) return true;
@@ -84,6 +67,8 @@ bool LoadJob::step(size_t budget) {
       return true;
     }
     spent += (*batch)->row_count() * per_row;
+    // The loaded table stays in memory for the whole session: its repeated
+    // values are kept once.
     if (Status st = s.table.append(with_repeated_values_shared(**batch)); !st) {
       error_ = st.take_error();
       return true;

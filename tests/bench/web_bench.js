@@ -5,6 +5,10 @@
 //            (the file read in slices into the WebAssembly heap, open screen)
 //   load     the `load` action until idle (loading and profiling)
 //   recipe   picking the recipe in the recipe input until idle (replay)
+//   memory   at the end, in MB: the page's WebAssembly memory (it only grows,
+//            so it is the session's peak; the file as read is in it); the
+//            desktop's peak resident memory (VmHWM: the whole process, Mesa's
+//            software renderer included)
 // It prints every round and the median of each phase. The machine is shared
 // and its speed varies, so with --desk the same rounds run the native desktop
 // program too (tamis-desk --timings --script, under xvfb-run with Mesa's
@@ -41,7 +45,8 @@ for (const file of [html, large, recipe, ...(values.desk ? [values.desk] : [])])
 }
 
 // gap: the longest time between two frames during load.
-const phases = ["ready", "open", "load", "gap", "recipe"];
+const phases = ["ready", "open", "load", "gap", "recipe", "memory"];
+const unit = (phase) => (phase === "memory" ? "MB" : "s");
 
 async function timed(work) {
   const start = process.hrtime.bigint();
@@ -80,6 +85,7 @@ async function round(browser, server) {
       return window.tamisFrameProbe.longest / 1000;
     });
     times.recipe = await timed(() => harness.pickFile(record, "tamis-recipe-input", recipe));
+    times.memory = await record.page.evaluate(() => HEAP8.length / 1e6);
     const messages = record.console.withPrefix("TAMIS_MESSAGE");
     if (messages.length) console.log("  page messages: " + messages.join(" | "));
   } finally {
@@ -99,17 +105,20 @@ function deskRound() {
                                        "--timings", "--script", script],
                           { encoding: "utf8", env: { ...process.env, LIBGL_ALWAYS_SOFTWARE: "1" } });
     if (run.status !== 0) throw new Error("tamis-desk failed (" + run.status + "): " + run.stderr);
-    const ms = (pattern) => {
+    const figure = (pattern) => {
       const found = run.stderr.match(pattern);
       if (!found) throw new Error("tamis-desk --timings printed no line matching " + pattern + ":\n" + run.stderr);
-      return Number(found[1]) / 1000;
+      return Number(found[1]);
     };
+    const ms = (pattern) => figure(pattern) / 1000;
     return {
       ready: ms(/first screen after ([0-9.]+) ms/),
       open: ms(/line 1 \(open\) done in ([0-9.]+) ms/),
       load: ms(/line 2 \(load\) done in ([0-9.]+) ms/),
       gap: ms(/line 2 \(load\) done in .* longest frame ([0-9.]+) ms/),
       recipe: ms(/line 3 \(open-recipe\) done in ([0-9.]+) ms/),
+      // tamis-desk prints MiB (KiB / 1024)
+      memory: figure(/line 3 \(open-recipe\) done in .* peak ([0-9.]+) MB/) * 1.048576,
     };
   } finally {
     fs.rmSync(work, { recursive: true, force: true });
@@ -131,7 +140,7 @@ function median(list) {
   const browser = await harness.launchChromium();
   const all = [];
   const desk = [];
-  const show = (times) => phases.map((p) => `${p} ${times[p].toFixed(2)} s`).join(", ");
+  const show = (times) => phases.map((p) => `${p} ${times[p].toFixed(p === "memory" ? 0 : 2)} ${unit(p)}`).join(", ");
   try {
     for (let i = 1; i <= rounds; i++) {
       const times = await round(browser, server);

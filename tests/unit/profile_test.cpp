@@ -318,7 +318,7 @@ TEST_CASE("unit_profile: trailing punctuation includes non-ASCII punctuation") {
   CHECK(c.trailing_punctuation == 4);
 }
 
-TEST_CASE("unit_profile: stepping with a tiny budget gives the same profile") {
+TEST_CASE("unit_profile: stepping with a tiny budget, or repeated values kept once, gives the same profile") {
   std::string csv = "id,species,height,planted,note\n";
   for (int i = 0; i < 200; ++i) {
     csv += std::to_string(i % 37);
@@ -351,6 +351,9 @@ TEST_CASE("unit_profile: stepping with a tiny budget gives the same profile") {
   CHECK(stepped.rows == whole.rows);
   REQUIRE(stepped.columns.size() == whole.columns.size());
   for (size_t c = 0; c < whole.columns.size(); ++c) CHECK(describe(stepped.columns[c]) == describe(whole.columns[c]));
+  // The workbench's tables keep repeated values once (a dictionary per chunk).
+  const TableProfile shared = profile_table(with_repeated_values_shared(table));
+  for (size_t c = 0; c < whole.columns.size(); ++c) CHECK(describe(shared.columns[c]) == describe(whole.columns[c]));
   CHECK(whole.columns[1].type == Type::text);
   CHECK(whole.columns[2].type == Type::decimal);
   CHECK(whole.columns[3].type == Type::date);

@@ -24,7 +24,8 @@ using test::read_ok;
 Table table_of(const std::string& csv) { return read_ok(csv, test::dialect(',', HeaderMode::yes)); }
 
 // Every test's table is also scanned with its whole-table work (previews,
-// views) run one row at a time: batching must not change a single finding.
+// views) run one row at a time, and with its repeated values stored once:
+// neither may change a single finding.
 std::vector<Finding> findings_of(const Table& table, const FindingOptions& options = {}) {
   const TableProfile profile = profile_table(table);
   std::vector<Finding> found = find_problems(table, profile, options);
@@ -34,6 +35,12 @@ std::vector<Finding> findings_of(const Table& table, const FindingOptions& optio
   REQUIRE(batched.size() == found.size());
   for (size_t i = 0; i < found.size(); ++i)
     CHECK(finding_to_json(batched[i]).dump() == finding_to_json(found[i]).dump());
+  // And as the workbench loads it, with repeated values kept once.
+  const Table shared = with_repeated_values_shared(table);
+  const std::vector<Finding> from_shared = find_problems(shared, profile_table(shared), options);
+  REQUIRE(from_shared.size() == found.size());
+  for (size_t i = 0; i < found.size(); ++i)
+    CHECK(finding_to_json(from_shared[i]).dump() == finding_to_json(found[i]).dump());
   return found;
 }
 

@@ -18,18 +18,30 @@ ColumnValues collect_values(const Column& column) {
   ColumnValues out;
   if (column.type() != Type::text) return out;
   uint64_t row = 0;
+  auto add = [&](std::string_view v, uint64_t count, uint64_t first_row) {
+    out.non_null += count;
+    const auto [it, added] = out.index.try_emplace(v, out.values.size());
+    if (added) out.values.push_back({v, count, first_row});
+    else out.values[it->second].count += count;
+  };
   for (size_t k = 0; k < column.chunk_count(); ++k) {
     const ColumnChunk& chunk = column.chunk(k);
+    if (chunk.layout == TextLayout::dictionary) {
+      uint64_t non_null = 0;
+      for (const DictionaryCount& c : count_dictionary_values(chunk)) {
+        add(chunk.own_text(c.code), c.count, row + c.first_row);
+        non_null += c.count;
+      }
+      out.nulls += chunk.rows - non_null;
+      row += chunk.rows;
+      continue;
+    }
     for (size_t i = 0; i < chunk.rows; ++i, ++row) {
       if (chunk.is_null(i)) {
         ++out.nulls;
         continue;
       }
-      ++out.non_null;
-      const std::string_view v = chunk.text(i);
-      const auto [it, added] = out.index.try_emplace(v, out.values.size());
-      if (added) out.values.push_back({v, 1, row});
-      else ++out.values[it->second].count;
+      add(chunk.text(i), 1, row);
     }
   }
   return out;
