@@ -380,6 +380,20 @@ TEST_CASE("unit_findings: NULLs fillable from a key column and a conflicting gro
   CHECK(f.fixes[0].preview.warnings.size() >= 1);  // the Towpath conflict, from the step itself
 }
 
+TEST_CASE("unit_findings: NULLs fillable once a variant spelling is fixed, the fix seen through its delta") {
+  // Fen Edge's "Fenmoor." rows agree with "Fenmoor" only after the trailing
+  // punctuation fix; the fixed rows are a delta over the column's chunk.
+  std::string csv = "site,district\n";
+  for (int i = 0; i < 12; ++i) csv += "Mill Lane,Old Tannery\n";
+  for (int i = 0; i < 12; ++i) csv += i % 4 == 3 ? "Fen Edge,Fenmoor.\n" : "Fen Edge,Fenmoor\n";
+  csv += "Mill Lane,\nFen Edge,\n";
+  const auto findings = findings_of(table_of(csv));
+  const Finding& f = only(findings, "fillable_nulls");
+  CHECK(f.facts["key"] == "site");
+  CHECK(f.rows_affected == 2);
+  CHECK(f.facts["conflicting_groups"] == 0);
+}
+
 TEST_CASE("unit_findings: rows whose measure columns are all missing, and useless columns") {
   const Table t = table_of(
       "site,count,pct,unit,note\n"

@@ -40,14 +40,28 @@ ValueIds value_ids(const Table& table, size_t column) {
   ValueIds out;
   out.ids.reserve(table.row_count());
   std::unordered_map<std::string_view, uint32_t> seen;
-  ColumnCursor cursor(table.column(column));
-  for (size_t row = 0; row < table.row_count(); ++row, cursor.next()) {
-    if (cursor.is_null()) {
-      out.ids.push_back(0);
-      continue;
+  auto id_of = [&](std::string_view v) {
+    return seen.try_emplace(v, static_cast<uint32_t>(seen.size() + 1)).first->second;
+  };
+  std::vector<uint32_t> code_ids;  // a dictionary code's id; 0 until looked up
+  const Column& values = table.column(column);
+  for (size_t k = 0; k < values.chunk_count(); ++k) {
+    const ColumnChunk& chunk = values.chunk(k);
+    // Rows read from a dictionary (the chunk, or a delta's base) are looked up once per code.
+    const ColumnChunk* dictionary = chunk.is_delta() ? chunk.base.get() : &chunk;
+    if (dictionary->layout != TextLayout::dictionary) dictionary = nullptr;
+    if (dictionary) code_ids.assign(dictionary->offsets.size() - 1, 0);
+    for (size_t i = 0; i < chunk.rows; ++i) {
+      if (chunk.is_null(i)) {
+        out.ids.push_back(0);
+      } else if (!dictionary || (chunk.is_delta() && chunk.row_changed(i))) {
+        out.ids.push_back(id_of(chunk.text(i)));
+      } else {
+        uint32_t& id = code_ids[dictionary->codes[i]];
+        if (id == 0) id = id_of(dictionary->own_text(dictionary->codes[i]));
+        out.ids.push_back(id);
+      }
     }
-    const auto [it, fresh] = seen.try_emplace(cursor.text(), static_cast<uint32_t>(seen.size() + 1));
-    out.ids.push_back(it->second);
   }
   out.distinct = static_cast<uint32_t>(seen.size());
   return out;
