@@ -10,6 +10,7 @@
 // since a stray "Fenmor" makes a group look like a conflict.
 #include <algorithm>
 #include <unordered_map>
+#include <variant>
 
 #include "findings/detectors.hpp"
 #include "steps/typed_support.hpp"
@@ -30,15 +31,23 @@ struct KeyScore {
 };
 
 // A text column as dense value ids, row by row: 0 for NULL, 1.. for each
-// distinct text, so that grouping compares integers instead of strings.
+// distinct text, so that grouping compares integers instead of strings. The
+// ids of every candidate key stay at hand while each column is scored, so
+// they are kept in the narrowest type that holds them: a key repeats, and
+// most have fewer than 256 values (a byte per row instead of four).
 struct ValueIds {
-  std::vector<uint32_t> ids;
+  std::variant<std::vector<uint8_t>, std::vector<uint16_t>, std::vector<uint32_t>> ids;
   uint32_t distinct = 0;
 };
 
+template <class Narrow>
+std::vector<Narrow> narrowed(const std::vector<uint32_t>& ids) {
+  return std::vector<Narrow>(ids.begin(), ids.end());
+}
+
 ValueIds value_ids(const Table& table, size_t column) {
-  ValueIds out;
-  out.ids.reserve(table.row_count());
+  std::vector<uint32_t> ids;
+  ids.reserve(table.row_count());
   std::unordered_map<std::string_view, uint32_t> seen;
   auto id_of = [&](std::string_view v) {
     return seen.try_emplace(v, static_cast<uint32_t>(seen.size() + 1)).first->second;
@@ -53,31 +62,34 @@ ValueIds value_ids(const Table& table, size_t column) {
     if (dictionary) code_ids.assign(dictionary->offsets.size() - 1, 0);
     for (size_t i = 0; i < chunk.rows; ++i) {
       if (chunk.is_null(i)) {
-        out.ids.push_back(0);
+        ids.push_back(0);
       } else if (!dictionary || (chunk.is_delta() && chunk.row_changed(i))) {
-        out.ids.push_back(id_of(chunk.text(i)));
+        ids.push_back(id_of(chunk.text(i)));
       } else {
         uint32_t& id = code_ids[dictionary->codes[i]];
         if (id == 0) id = id_of(dictionary->own_text(dictionary->codes[i]));
-        out.ids.push_back(id);
+        ids.push_back(id);
       }
     }
   }
+  ValueIds out;
   out.distinct = static_cast<uint32_t>(seen.size());
+  if (out.distinct <= UINT8_MAX) out.ids = narrowed<uint8_t>(ids);
+  else if (out.distinct <= UINT16_MAX) out.ids = narrowed<uint16_t>(ids);
+  else out.ids = std::move(ids);
   return out;
 }
 
-KeyScore score(const ValueIds& keys, const ValueIds& target, size_t key) {
+template <class KeyId, class ValueId>
+KeyScore score_ids(const std::vector<KeyId>& keys, uint32_t key_count, const std::vector<ValueId>& target, size_t key) {
   struct Group {
     uint32_t first = 0;  // the first non-NULL value id seen
     bool several = false;
     uint64_t nulls = 0;
   };
-  std::vector<Group> groups(keys.distinct + 1);
-  std::vector<uint64_t> pairs;  // (group << 32 | value) of the non-NULL values, for the agreement share
-  pairs.reserve(keys.ids.size());
-  for (size_t row = 0; row < keys.ids.size(); ++row) {
-    const uint32_t k = keys.ids[row], v = target.ids[row];
+  std::vector<Group> groups(key_count + 1);
+  for (size_t row = 0; row < keys.size(); ++row) {
+    const uint32_t k = keys[row], v = target[row];
     if (k == 0) continue;
     Group& g = groups[k];
     if (v == 0) {
@@ -86,7 +98,6 @@ KeyScore score(const ValueIds& keys, const ValueIds& target, size_t key) {
     }
     if (g.first == 0) g.first = v;
     else g.several |= g.first != v;
-    pairs.push_back(uint64_t{k} << 32 | v);
   }
   KeyScore s;
   s.key = key;
@@ -95,7 +106,12 @@ KeyScore score(const ValueIds& keys, const ValueIds& target, size_t key) {
     if (g.several && g.nulls > 0) ++s.conflicting, s.conflict_nulls += g.nulls;
   }
   if (s.fillable == 0) return s;
-  // Per group: the rows with a value and the count of its most frequent value.
+  // Per group: the rows with a value and the count of its most frequent
+  // value, from the (group << 32 | value) pairs sorted. Only a key that
+  // could fill something gets this far.
+  std::vector<uint64_t> pairs;
+  for (size_t row = 0; row < keys.size(); ++row)
+    if (keys[row] != 0 && target[row] != 0) pairs.push_back(uint64_t{keys[row]} << 32 | target[row]);
   std::sort(pairs.begin(), pairs.end());
   uint64_t agreeing = 0, compared = 0;
   for (size_t i = 0; i < pairs.size();) {
@@ -112,6 +128,11 @@ KeyScore score(const ValueIds& keys, const ValueIds& target, size_t key) {
   }
   s.agreement = compared == 0 ? 0 : static_cast<double>(agreeing) / static_cast<double>(compared);
   return s;
+}
+
+KeyScore score(const ValueIds& keys, const ValueIds& target, size_t key) {
+  return std::visit([&](const auto& key_ids, const auto& target_ids) { return score_ids(key_ids, keys.distinct, target_ids, key); },
+                    keys.ids, target.ids);
 }
 
 }  // namespace
