@@ -19,6 +19,7 @@
 #include <fstream>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "desk_platform.hpp"
@@ -111,6 +112,21 @@ MemoryUse memory_use() {
     if (line.rfind("VmHWM:", 0) == 0) use.peak_mb = kb / 1024.0;
   }
   return use;
+}
+
+// Runs one script line. `drop PATH` is the shell's own action: the file
+// arrives as a file dropped on the window does, as SDL's drop event through
+// the event loop; every other line is a workbench action.
+tamis::Status run_script_line(tamis::ui::Workbench& workbench, const std::string& line) {
+  constexpr std::string_view drop_action = "drop ";
+  if (line.rfind(drop_action, 0) != 0) return workbench.run_action(line);
+  SDL_Event drop{};
+  drop.type = SDL_DROPFILE;
+  drop.drop.file = SDL_strdup(line.c_str() + drop_action.size());
+  drop.drop.windowID = SDL_GetWindowID(SDL_GL_GetCurrentWindow());
+  if (SDL_PushEvent(&drop) == 1) return tamis::Ok{};
+  SDL_free(drop.drop.file);
+  return tamis::usage_error(std::string("cannot queue the drop event: ") + SDL_GetError());
 }
 
 // The interface scale: the display's DPI over 96 (the reference of most
@@ -269,7 +285,7 @@ int main(int argc, char** argv) {
         timing_action = !line.empty() && line[0] != '#';
         action_started = Clock::now();
         longest_action_frame_ms = 0;
-        const tamis::Status done = workbench.run_action(script[next_action]);
+        const tamis::Status done = run_script_line(workbench, script[next_action]);
         if (!done) {
           std::fprintf(stderr, "tamis-desk: script line %zu: %s\n", next_action + 1, done.error().message.c_str());
           exit_status = 1;

@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """End-to-end test of tamis-desk under Xvfb with Mesa's software OpenGL.
 
-Replays a script of UI actions (tamis-desk --script) that opens the demo
+Replays a script of UI actions (tamis-desk --script) that drops the demo
 file (trying a wrong delimiter on the open screen first), adds the fixes of
 three findings, merges one group of similar values with one member unticked,
 and exports the recipe and the cleaned CSV. Then checks:
@@ -94,7 +94,8 @@ def main():
         with open(actions, "w", encoding="utf-8") as f:
             f.write("\n".join([
                 "# the demo, three findings' fixes, one similar-values group",
-                "open " + demo,
+                # Dropped on the window, as from a file manager.
+                "drop " + demo,
                 # The open screen's delimiter control: a wrong choice shows one column.
                 "read-option delimiter ;",
                 "expect-columns 1",
