@@ -5,10 +5,11 @@
 //            (the file read in slices into the WebAssembly heap, open screen)
 //   load     the `load` action until idle (loading and profiling)
 //   recipe   picking the recipe in the recipe input until idle (replay)
-//   memory   at the end, in MB: the page's WebAssembly memory (it only grows,
-//            so it is the session's peak; the file as read is in it); the
+//   loaded   once loaded, in MB: the page's WebAssembly memory (it only
+//            grows, so it is the peak so far; the file as read is in it); the
 //            desktop's peak resident memory (VmHWM: the whole process, Mesa's
 //            software renderer included)
+//   memory   the same at the end, after the recipe
 // It prints every round and the median of each phase. The machine is shared
 // and its speed varies, so with --desk the same rounds run the native desktop
 // program too (tamis-desk --timings --script, under xvfb-run with Mesa's
@@ -45,8 +46,9 @@ for (const file of [html, large, recipe, ...(values.desk ? [values.desk] : [])])
 }
 
 // gap: the longest time between two frames during load.
-const phases = ["ready", "open", "load", "gap", "recipe", "memory"];
-const unit = (phase) => (phase === "memory" ? "MB" : "s");
+const phases = ["ready", "open", "load", "gap", "loaded", "recipe", "memory"];
+const isMemory = (phase) => phase === "loaded" || phase === "memory";
+const unit = (phase) => (isMemory(phase) ? "MB" : "s");
 
 async function timed(work) {
   const start = process.hrtime.bigint();
@@ -84,6 +86,7 @@ async function round(browser, server) {
       window.tamisFrameProbe.stop = true;
       return window.tamisFrameProbe.longest / 1000;
     });
+    times.loaded = await record.page.evaluate(() => HEAP8.length / 1e6);
     times.recipe = await timed(() => harness.pickFile(record, "tamis-recipe-input", recipe));
     times.memory = await record.page.evaluate(() => HEAP8.length / 1e6);
     const messages = record.console.withPrefix("TAMIS_MESSAGE");
@@ -118,6 +121,7 @@ function deskRound() {
       gap: ms(/line 2 \(load\) done in .* longest frame ([0-9.]+) ms/),
       recipe: ms(/line 3 \(open-recipe\) done in ([0-9.]+) ms/),
       // tamis-desk prints MiB (KiB / 1024)
+      loaded: figure(/line 2 \(load\) done in .* peak ([0-9.]+) MB/) * 1.048576,
       memory: figure(/line 3 \(open-recipe\) done in .* peak ([0-9.]+) MB/) * 1.048576,
     };
   } finally {
@@ -140,7 +144,7 @@ function median(list) {
   const browser = await harness.launchChromium();
   const all = [];
   const desk = [];
-  const show = (times) => phases.map((p) => `${p} ${times[p].toFixed(p === "memory" ? 0 : 2)} ${unit(p)}`).join(", ");
+  const show = (times) => phases.map((p) => `${p} ${times[p].toFixed(isMemory(p) ? 0 : 2)} ${unit(p)}`).join(", ");
   try {
     for (let i = 1; i <= rounds; i++) {
       const times = await round(browser, server);
