@@ -21,7 +21,7 @@ std::optional<Type> type_from_name(std::string_view name) {
 size_t ColumnChunk::memory_bytes() const {
   return validity.capacity() * sizeof(uint64_t) + bytes.capacity() + offsets.capacity() * sizeof(uint32_t) +
          numbers.capacity() * sizeof(int64_t) + changed.capacity() * sizeof(uint64_t) +
-         changed_before.capacity() * sizeof(uint32_t) + codes.capacity() * sizeof(uint16_t);
+         changed_before.capacity() * sizeof(uint32_t) + (codes ? codes->capacity() * sizeof(uint16_t) : 0);
 }
 
 size_t ColumnChunk::text_bytes() const {
@@ -127,8 +127,23 @@ std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const 
   std::shared_ptr<ColumnChunk> out = dictionary.finish_mutable();
   out->rows = in.rows;
   out->validity = in.validity;
-  out->codes = std::move(codes);
+  out->codes = std::make_shared<const std::vector<uint16_t>>(std::move(codes));
   out->layout = TextLayout::dictionary;
+  return out;
+}
+
+std::shared_ptr<const ColumnChunk> with_dictionary_values(const ColumnChunk& dictionary, TextChunkBuilder& values,
+                                                          const std::vector<uint8_t>& to_null) {
+  std::shared_ptr<ColumnChunk> out = values.finish_mutable();
+  out->rows = dictionary.rows;
+  out->validity = dictionary.validity;
+  out->codes = dictionary.codes;
+  out->layout = TextLayout::dictionary;
+  for (size_t i = 0; i < out->rows; ++i) {
+    if (!to_null[out->code(i)]) continue;
+    if (out->validity.empty()) out->validity.assign((out->rows + 63) / 64, ~uint64_t{0});
+    out->validity[i >> 6] &= ~(uint64_t{1} << (i & 63));
+  }
   return out;
 }
 
@@ -148,7 +163,7 @@ std::vector<DictionaryCount> count_dictionary_values(const ColumnChunk& chunk) {
   std::vector<DictionaryCount> counts(chunk.offsets.size() - 1);
   for (size_t i = chunk.rows; i-- > 0;) {
     if (chunk.own_is_null(i)) continue;
-    DictionaryCount& c = counts[chunk.codes[i]];
+    DictionaryCount& c = counts[chunk.code(i)];
     ++c.count;
     c.first_row = static_cast<uint32_t>(i);
   }

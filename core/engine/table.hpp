@@ -24,7 +24,9 @@
 // 16-bit code per row. The workbench stores the file it loads so
 // (shared_repeated_values), because extracts repeat a few names, codes and
 // dates over millions of rows; a streaming run does not, since its batches
-// do not stay in memory. A NULL row's code is that of the empty text.
+// do not stay in memory. The steps that rewrite cells one by one keep a
+// dictionary a dictionary (with_dictionary_values). A NULL row's code is
+// that of the empty text as loaded; a cell made NULL later keeps its code.
 #pragma once
 
 #include <bit>
@@ -68,8 +70,9 @@ struct ColumnChunk {
   std::shared_ptr<const ColumnChunk> base;
   std::vector<uint64_t> changed;
   std::vector<uint32_t> changed_before;
-  // Dictionary only: row i's value is value codes[i] of bytes and offsets.
-  std::vector<uint16_t> codes;
+  // Dictionary only: row i's value is value code(i) of bytes and offsets. A
+  // step that rewrites the values shares the codes with its input.
+  std::shared_ptr<const std::vector<uint16_t>> codes;
   TextLayout layout = TextLayout::plain;
 
   bool is_plain() const { return layout == TextLayout::plain; }
@@ -90,6 +93,7 @@ struct ColumnChunk {
     return std::string_view(bytes.data() + offsets[j], offsets[j + 1] - offsets[j]);
   }
   bool row_changed(size_t i) const { return (changed[i >> 6] >> (i & 63)) & 1; }
+  uint16_t code(size_t i) const { return (*codes)[i]; }
   // About the text bytes the chunk's values add up to (an estimate for builders).
   size_t text_bytes() const;
   size_t memory_bytes() const;
@@ -97,7 +101,7 @@ struct ColumnChunk {
  private:
   // Row i of a plain or dictionary chunk.
   std::string_view stored_text(size_t i) const {
-    return layout == TextLayout::dictionary ? own_text(codes[i]) : own_text(i);
+    return layout == TextLayout::dictionary ? own_text(code(i)) : own_text(i);
   }
   size_t changed_rank(size_t i) const {
     return changed_before[i >> 6] + static_cast<size_t>(std::popcount(changed[i >> 6] & ((uint64_t{1} << (i & 63)) - 1)));
@@ -125,6 +129,8 @@ class TextChunkBuilder {
  private:
   friend class TextDeltaBuilder;
   friend std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const ColumnChunk> chunk);
+  friend std::shared_ptr<const ColumnChunk> with_dictionary_values(const ColumnChunk&, TextChunkBuilder&,
+                                                                   const std::vector<uint8_t>&);
   std::shared_ptr<ColumnChunk> finish_mutable();
   void mark_null(size_t row);
 
@@ -137,6 +143,12 @@ class TextChunkBuilder {
 // The chunk with its distinct values kept once, when that is smaller; else
 // the chunk itself. Plain text chunks only.
 std::shared_ptr<const ColumnChunk> shared_repeated_values(std::shared_ptr<const ColumnChunk> chunk);
+
+// A dictionary chunk whose rows keep their codes while the values change:
+// value j becomes `values`' row j, and the rows holding a code j with
+// to_null[j] set become NULL. `values` has one row per value of the input.
+std::shared_ptr<const ColumnChunk> with_dictionary_values(const ColumnChunk& dictionary, TextChunkBuilder& values,
+                                                          const std::vector<uint8_t>& to_null);
 
 // How often each value of a dictionary chunk occurs in its non-NULL rows, in
 // the order of their first such row: counting codes, not hashing text.

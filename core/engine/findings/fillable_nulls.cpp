@@ -66,8 +66,8 @@ ValueIds value_ids(const Table& table, size_t column) {
       } else if (!dictionary || (chunk.is_delta() && chunk.row_changed(i))) {
         ids.push_back(id_of(chunk.text(i)));
       } else {
-        uint32_t& id = code_ids[dictionary->codes[i]];
-        if (id == 0) id = id_of(dictionary->own_text(dictionary->codes[i]));
+        uint32_t& id = code_ids[dictionary->code(i)];
+        if (id == 0) id = id_of(dictionary->own_text(dictionary->code(i)));
         ids.push_back(id);
       }
     }

@@ -90,12 +90,13 @@ std::optional<std::string> replacement_problem(const icu::RegexPattern& pattern,
   return std::nullopt;
 }
 
-// The row of the n-th (0-based) non-NULL cell of a column.
-size_t row_of_non_null(const Column& column, size_t n) {
+// The first row holding a value (the expression fails on the value, so its
+// first row is where a row-by-row pass stops).
+size_t first_row_of(const Column& column, std::string_view value) {
   for (size_t k = 0; k < column.chunk_count(); ++k) {
     const ColumnChunk& chunk = column.chunk(k);
     for (size_t i = 0; i < chunk.rows; ++i)
-      if (!chunk.is_null(i) && n-- == 0) return column.chunk_start(k) + i;
+      if (!chunk.is_null(i) && chunk.text(i) == value) return column.chunk_start(k) + i;
   }
   return column.size();
 }
@@ -199,11 +200,11 @@ class ReplaceText final : public Step {
     icu::UnicodeString replaced;
     Table out = batch;
     for (const size_t c : columns_) {
-      size_t cells_seen = 0;
+      std::string_view last_value;  // in the batch, which outlives the loop
       UErrorCode failure = U_ZERO_ERROR;
       ColumnPtr column = map_text_column(batch.column(c), batch.name(c), change, [&](std::string_view v, std::string& result) {
         if (U_FAILURE(failure)) return CellResult::unchanged;
-        ++cells_seen;
+        last_value = v;
         UErrorCode s = U_ZERO_ERROR;
         utext_openUTF8(&text, v.data(), static_cast<int64_t>(v.size()), &s);
         matcher->reset(&text);
@@ -224,7 +225,7 @@ class ReplaceText final : public Step {
       });
       if (U_FAILURE(failure)) {
         utext_close(&text);
-        const size_t row = row_of_non_null(batch.column(c), cells_seen - 1);
+        const size_t row = first_row_of(batch.column(c), last_value);
         Error e;
         e.kind = ErrorKind::bad_input;
         e.line = batch.source_line(row);
