@@ -776,5 +776,31 @@ TEST_CASE("unit_steps_text: every text step gives the same result on values kept
   }
 }
 
+// "(a+)+b" against a run of a's with no b backtracks exponentially (the
+// classic catastrophic pattern, common practice), so ICU's time limit stops
+// it. The error names the first row holding that value, whether the cells are
+// visited row by row or each distinct value once.
+TEST_CASE("unit_steps_text: replace_text names the line of the value its regular expression failed on") {
+  const std::string runaway(30, 'a');
+  const std::vector<Cell> cells = {"x", "y", "x", runaway, "y", "x", runaway, "x"};
+  const Table plain = values(cells);
+  const Table kept_once = with_repeated_values_shared(text_table({"v"}, [&] {
+    std::vector<std::vector<Cell>> rows;
+    for (const Cell& c : cells) rows.push_back({c});
+    return rows;
+  }(), cells.size()));
+  REQUIRE(kept_once.column(0).chunk(0).layout == TextLayout::dictionary);
+  const json definition = {{"op", "replace_text"}, {"columns", {"v"}}, {"find", "(a+)+b"}, {"replace", "-"}, {"match", "regex"}};
+  for (const Table* table : {&plain, &kept_once}) {
+    const auto step = parse_ok(definition, schema_of(*table));
+    ChangeRecord change;
+    auto out = step->apply(*table, nullptr, change);
+    REQUIRE_FALSE(out.ok());
+    // Row 4 (0-based 3) holds the first run; text_table numbers rows from line 2.
+    CHECK(out.error().line == 5);
+    CHECK(out.error().message.find("at line 5") != std::string::npos);
+  }
+}
+
 }  // namespace
 }  // namespace tamis
