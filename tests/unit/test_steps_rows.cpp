@@ -173,6 +173,32 @@ TEST_CASE("unit_steps_rows: deduplicate keeps the first or the last and says whi
     check_streaming(json::array({step}), in);
 }
 
+// The workbench keeps the file it loads with each distinct value once (a
+// dictionary chunk, table.hpp); a step that removes rows keeps the values
+// and the kept rows' codes. The rows must be those of the same table stored
+// plainly (a consistency check within the engine).
+TEST_CASE("unit_steps_rows: removing rows from values kept once keeps them once") {
+  const std::vector<Cell> names = {"Oak", "Elm", null_cell, "", "Oak", "Ash"};
+  std::vector<Cell> site, grp;
+  for (size_t r = 0; r < 24; ++r) {
+    site.push_back(names[r % names.size()]);
+    grp.push_back(names[(r / 2) % names.size()]);
+  }
+  const Table plain = table_of({"site", "grp"}, {text_column(site, site.size()), text_column(grp, grp.size())});
+  const Table kept_once = with_repeated_values_shared(plain);
+  for (size_t c = 0; c < 2; ++c) REQUIRE(kept_once.column(c).chunk(0).layout == TextLayout::dictionary);
+  const std::vector<json> steps = {dedup("*"), {{"op", "drop_rows"}, {"where", "site = 'Oak'"}},
+                                   {{"op", "keep_rows"}, {"where", "grp IS NULL OR site = ''"}}};
+  for (const json& step : steps) {
+    const RunResult expected = run_ok(json::array({step}), plain);
+    const RunResult got = run_ok(json::array({step}), kept_once);
+    CHECK_MESSAGE(rows_of(*got.table) == rows_of(*expected.table), step.dump());
+    CHECK(test::lines_of(*got.table) == test::lines_of(*expected.table));
+    REQUIRE(got.table->row_count() < plain.row_count());
+    for (size_t c = 0; c < 2; ++c) CHECK(got.table->column(c).chunk(0).layout == TextLayout::dictionary);
+  }
+}
+
 TEST_CASE("unit_steps_rows: deduplicate compares trimmed or case-folded text") {
   // U+00A0 NO-BREAK SPACE and U+3000 IDEOGRAPHIC SPACE are White_Space
   // (PropList.txt); U+200B ZERO WIDTH SPACE is not.

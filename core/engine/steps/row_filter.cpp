@@ -40,25 +40,47 @@ std::shared_ptr<const ColumnChunk> select_text_chunk(const ColumnChunk& chunk, c
   return builder.finish();
 }
 
+// The kept rows' validity bits; empty when every kept row has a value.
+std::vector<uint64_t> kept_validity(const ColumnChunk& chunk, const uint8_t* keep, size_t kept) {
+  if (!chunk.has_nulls()) return {};
+  std::vector<uint64_t> validity((kept + 63) / 64, 0);
+  size_t at = 0;
+  bool any_null = false;
+  for (size_t i = 0; i < chunk.rows; ++i) {
+    if (!keep[i]) continue;
+    const bool present = !chunk.is_null(i);
+    any_null |= !present;
+    validity[at >> 6] |= static_cast<uint64_t>(present) << (at & 63);
+    ++at;
+  }
+  if (!any_null) return {};
+  return validity;
+}
+
 std::shared_ptr<const ColumnChunk> select_typed_chunk(const ColumnChunk& chunk, const uint8_t* keep, size_t kept) {
   auto out = std::make_shared<ColumnChunk>();
   out->rows = kept;
   out->numbers.reserve(kept);
   for (size_t i = 0; i < chunk.rows; ++i)
     if (keep[i]) out->numbers.push_back(chunk.numbers[i]);
-  if (chunk.has_nulls()) {
-    std::vector<uint64_t> validity((kept + 63) / 64, 0);
-    size_t at = 0;
-    bool any_null = false;
-    for (size_t i = 0; i < chunk.rows; ++i) {
-      if (!keep[i]) continue;
-      const bool present = !chunk.is_null(i);
-      any_null |= !present;
-      validity[at >> 6] |= static_cast<uint64_t>(present) << (at & 63);
-      ++at;
-    }
-    if (any_null) out->validity = std::move(validity);
-  }
+  out->validity = kept_validity(chunk, keep, kept);
+  return out;
+}
+
+// A dictionary keeps its values (a few, each once) and the kept rows' codes,
+// so what reads the column next still counts codes.
+std::shared_ptr<const ColumnChunk> select_dictionary_chunk(const ColumnChunk& chunk, const uint8_t* keep, size_t kept) {
+  auto out = std::make_shared<ColumnChunk>();
+  out->layout = TextLayout::dictionary;
+  out->rows = kept;
+  out->bytes = chunk.bytes;
+  out->offsets = chunk.offsets;
+  auto codes = std::make_shared<std::vector<uint16_t>>();
+  codes->reserve(kept);
+  for (size_t i = 0; i < chunk.rows; ++i)
+    if (keep[i]) codes->push_back(chunk.code(i));
+  out->codes = std::move(codes);
+  out->validity = kept_validity(chunk, keep, kept);
   return out;
 }
 
@@ -70,8 +92,9 @@ ColumnPtr select_column(const Column& column, const std::vector<uint8_t>& keep) 
     const size_t kept = count_kept(keep, first, chunk.rows);
     if (kept == chunk.rows) out->append_chunk(column.chunk_ptr(k));
     else if (kept > 0)
-      out->append_chunk(column.type() == Type::text ? select_text_chunk(chunk, keep.data() + first, kept)
-                                                    : select_typed_chunk(chunk, keep.data() + first, kept));
+      out->append_chunk(column.type() != Type::text                  ? select_typed_chunk(chunk, keep.data() + first, kept)
+                        : chunk.layout == TextLayout::dictionary ? select_dictionary_chunk(chunk, keep.data() + first, kept)
+                                                                 : select_text_chunk(chunk, keep.data() + first, kept));
   }
   return out;
 }
