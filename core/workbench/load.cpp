@@ -24,9 +24,13 @@ Result<std::unique_ptr<LoadJob>> LoadJob::start(std::unique_ptr<ByteSource> sour
   s.skip_rows = options.skip_rows;
   // Like `tamis run`: a malformed record is set aside, not a reason to refuse the file.
   options.lenient = true;
-  // A batch is the unit of a slice's work; 4096 rows keep a slice short, and
-  // small chunks let later stages share more of them.
-  options.batch_rows = std::min<size_t>(options.batch_rows, 4096);
+  // A batch is the unit of a slice's work and a chunk of the loaded table.
+  // 32,768 rows keep a slice short (the desktop's longest frame while loading
+  // the 1M-row bench file: 187 ms, against 152 ms) while each chunk
+  // keeps its repeated values once over more rows: against 4,096, the load's
+  // peak on the 1M-row bench file fell from 203 to 185 MB and adding a step
+  // from 2.7 to 2.2 s, since fewer per-chunk dictionaries are merged.
+  options.batch_rows = std::min<size_t>(options.batch_rows, 32768);
   auto rejected = s.rejected;
   auto reader = CsvReader::open(std::move(source), std::move(name), options, [rejected](const RejectedRecord& r) {
     if (rejected->size() < LoadedFile::kListedRejects) rejected->push_back(r);

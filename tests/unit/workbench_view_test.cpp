@@ -281,7 +281,7 @@ TEST_CASE("unit_workbench_view: the sliced sort of 150,000 rows equals std::stab
   std::vector<size_t> only_a;
   for (size_t r : expected)
     if (!t.column(0).is_null(r) && t.column(0).text(r) == "a") only_a.push_back(r);
-  REQUIRE(t.column(0).chunk_count() > 10);
+  REQUIRE(t.column(0).chunk_count() > 3);  // loaded in chunks of 32,768 rows
   RowViewJob filtered(t, {{0, FilterKind::equals, "a"}}, {{0, false}, {1, true}}, iso());
   CHECK(run_to_end(filtered, 10000));
   CHECK(filtered.take_result() == only_a);
