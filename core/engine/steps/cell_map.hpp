@@ -32,6 +32,7 @@ std::shared_ptr<const ColumnChunk> map_dictionary_chunk(const std::shared_ptr<co
   for (size_t i = 0; i < chunk.rows; ++i)
     if (!chunk.own_is_null(i)) held[chunk.code(i)] = 1;
   std::vector<CellResult> results(value_count, CellResult::unchanged);
+  std::vector<uint8_t> to_null(value_count, 0);
   TextChunkBuilder values;
   std::string replacement;
   bool changed = false;
@@ -40,11 +41,10 @@ std::shared_ptr<const ColumnChunk> map_dictionary_chunk(const std::shared_ptr<co
     replacement.clear();
     if (held[j]) results[j] = f(value, replacement);
     changed |= results[j] != CellResult::unchanged;
+    to_null[j] = results[j] == CellResult::null;
     values.append(results[j] == CellResult::replaced ? std::string_view(replacement) : value);
   }
   if (!changed) return input;
-  std::vector<uint8_t> to_null(value_count, 0);
-  for (size_t j = 0; j < value_count; ++j) to_null[j] = results[j] == CellResult::null;
   std::shared_ptr<const ColumnChunk> out = with_dictionary_values(chunk, values, to_null);
   for (size_t i = 0; i < chunk.rows; ++i) {
     if (chunk.own_is_null(i)) continue;
