@@ -10,6 +10,7 @@
 // since a stray "Fenmor" makes a group look like a conflict.
 #include <algorithm>
 #include <unordered_map>
+#include <utility>
 #include <variant>
 
 #include "findings/detectors.hpp"
@@ -48,10 +49,8 @@ std::vector<Narrow> narrowed(const std::vector<uint32_t>& ids) {
 ValueIds value_ids(const Table& table, size_t column) {
   std::vector<uint32_t> ids;
   ids.reserve(table.row_count());
-  std::unordered_map<std::string_view, uint32_t> seen;
-  auto id_of = [&](std::string_view v) {
-    return seen.try_emplace(v, static_cast<uint32_t>(seen.size() + 1)).first->second;
-  };
+  StringIndex seen;
+  auto id_of = [&](std::string_view v) { return seen.insert(v).first + 1; };
   std::vector<uint32_t> code_ids;  // a dictionary code's id; 0 until looked up
   const Column& values = table.column(column);
   for (size_t k = 0; k < values.chunk_count(); ++k) {
@@ -78,6 +77,35 @@ ValueIds value_ids(const Table& table, size_t column) {
   else if (out.distinct <= UINT16_MAX) out.ids = narrowed<uint16_t>(ids);
   else out.ids = std::move(ids);
   return out;
+}
+
+// The rows where both ids are set, ordered by key id, then value id: a
+// least-significant-digit radix sort of two counting passes (Cormen et al.,
+// Introduction to Algorithms, 3rd ed., 8.2 and 8.3), linear in the rows where
+// a comparison sort of a million pairs took a fifth of the findings' time.
+template <class Id>
+void stable_order_by(const std::vector<Id>& ids, size_t id_count, std::vector<uint32_t>& rows, std::vector<uint32_t>& out) {
+  std::vector<uint32_t> start(id_count + 1, 0);
+  for (const uint32_t row : rows) ++start[ids[row]];
+  uint32_t sum = 0;
+  for (uint32_t& n : start) sum += std::exchange(n, sum);
+  out.resize(rows.size());
+  for (const uint32_t row : rows) out[start[ids[row]]++] = row;
+}
+
+template <class KeyId, class ValueId>
+std::vector<uint32_t> rows_by_group_and_value(const std::vector<KeyId>& keys, uint32_t key_count,
+                                              const std::vector<ValueId>& target) {
+  std::vector<uint32_t> rows, sorted;
+  uint32_t value_count = 0;
+  for (size_t row = 0; row < keys.size(); ++row) {
+    if (keys[row] == 0 || target[row] == 0) continue;
+    rows.push_back(static_cast<uint32_t>(row));
+    value_count = std::max<uint32_t>(value_count, target[row]);
+  }
+  stable_order_by(target, value_count, rows, sorted);
+  stable_order_by(keys, key_count, sorted, rows);
+  return rows;
 }
 
 template <class KeyId, class ValueId>
@@ -107,19 +135,16 @@ KeyScore score_ids(const std::vector<KeyId>& keys, uint32_t key_count, const std
   }
   if (s.fillable == 0) return s;
   // Per group: the rows with a value and the count of its most frequent
-  // value, from the (group << 32 | value) pairs sorted. Only a key that
-  // could fill something gets this far.
-  std::vector<uint64_t> pairs;
-  for (size_t row = 0; row < keys.size(); ++row)
-    if (keys[row] != 0 && target[row] != 0) pairs.push_back(uint64_t{keys[row]} << 32 | target[row]);
-  std::sort(pairs.begin(), pairs.end());
+  // value, from the rows sorted by (group, value). Only a key that could fill
+  // something gets this far.
+  const std::vector<uint32_t> rows = rows_by_group_and_value(keys, key_count, target);
   uint64_t agreeing = 0, compared = 0;
-  for (size_t i = 0; i < pairs.size();) {
-    const uint64_t group = pairs[i] >> 32;
+  for (size_t i = 0; i < rows.size();) {
+    const uint32_t group = keys[rows[i]];
     uint64_t total = 0, top = 0;
-    while (i < pairs.size() && pairs[i] >> 32 == group) {
+    while (i < rows.size() && keys[rows[i]] == group) {
       size_t j = i;
-      while (j < pairs.size() && pairs[j] == pairs[i]) ++j;
+      while (j < rows.size() && keys[rows[j]] == group && target[rows[j]] == target[rows[i]]) ++j;
       total += j - i;
       top = std::max<uint64_t>(top, j - i);
       i = j;

@@ -10,8 +10,8 @@
 namespace tamis {
 
 const DistinctValue* ColumnValues::find(std::string_view value) const {
-  const auto it = index.find(value);
-  return it == index.end() ? nullptr : &values[it->second];
+  const std::optional<uint32_t> number = index.find(value);
+  return number ? &values[*number] : nullptr;
 }
 
 ColumnValues collect_values(const Column& column) {
@@ -20,9 +20,9 @@ ColumnValues collect_values(const Column& column) {
   uint64_t row = 0;
   auto add = [&](std::string_view v, uint64_t count, uint64_t first_row) {
     out.non_null += count;
-    const auto [it, added] = out.index.try_emplace(v, out.values.size());
+    const auto [number, added] = out.index.insert(v);
     if (added) out.values.push_back({v, count, first_row});
-    else out.values[it->second].count += count;
+    else out.values[number].count += count;
   };
   for (size_t k = 0; k < column.chunk_count(); ++k) {
     const ColumnChunk& chunk = column.chunk(k);

@@ -10,12 +10,12 @@
 #include <memory>
 #include <string>
 #include <string_view>
-#include <unordered_map>
 #include <vector>
 
 #include "findings/detector_task.hpp"
 #include "findings/findings.hpp"
 #include "row_batches.hpp"
+#include "string_index.hpp"
 
 namespace tamis {
 
@@ -31,7 +31,7 @@ struct ColumnValues {
   uint64_t non_null = 0;
   std::vector<DistinctValue> values;
   const DistinctValue* find(std::string_view value) const;
-  std::unordered_map<std::string_view, size_t> index;
+  StringIndex index;  // numbers the values as `values` holds them
 };
 ColumnValues collect_values(const Column& column);
 

@@ -12,10 +12,18 @@ Task<> detect_numbers_as_text(DetectorContext& ctx) {
     co_await ctx.pause();
     const std::string& name = ctx.table.name(c);
     const StepList first = ctx.earlier_fixes(name, {"decimal_comma"});
-    auto base = co_await ctx.apply(first);
-    if (!base) continue;
-    const ColumnValues values = collect_values(base->column(c));
-    ctx.spend(base->row_count());
+    // Without a decimal_comma fix the column is as the context holds it,
+    // whose values other detectors have usually counted already.
+    std::optional<Table> fixed;  // holds the bytes fixed_values points into
+    ColumnValues fixed_values;
+    if (!first.empty()) {
+      auto base = co_await ctx.apply(first);
+      if (!base) continue;
+      fixed = std::move(*base);
+      fixed_values = collect_values(fixed->column(c));
+      ctx.spend(fixed->row_count());
+    }
+    const ColumnValues& values = first.empty() ? ctx.values(c) : fixed_values;
     uint64_t numbers = 0, comma_groups = 0, point_groups = 0, decimal_commas = 0, percents = 0, currencies = 0;
     uint64_t point_fractions = 0, fractions = 0, unreadable = 0;
     bool inner_space = false;
