@@ -47,13 +47,41 @@ ColumnValues collect_values(const Column& column) {
   return out;
 }
 
+bool ValuesCache::holds(const Entry& entry, const Column& column) {
+  if (entry.type != column.type() || entry.chunks.size() != column.chunk_count()) return false;
+  for (size_t k = 0; k < entry.chunks.size(); ++k)
+    if (entry.chunks[k] != column.chunk_ptr(k)) return false;
+  return true;
+}
+
+const ColumnValues* ValuesCache::find(const Column& column) const {
+  for (const Entry& entry : entries_)
+    if (holds(entry, column)) return entry.values.get();
+  return nullptr;
+}
+
+const ColumnValues& ValuesCache::add(const Column& column, ColumnValues values) {
+  Entry entry;
+  entry.type = column.type();
+  for (size_t k = 0; k < column.chunk_count(); ++k) entry.chunks.push_back(column.chunk_ptr(k));
+  entry.values = std::make_unique<ColumnValues>(std::move(values));
+  entries_.push_back(std::move(entry));
+  return *entries_.back().values;
+}
+
+void ValuesCache::keep_only(const Table& table) {
+  std::erase_if(entries_, [&table](const Entry& entry) {
+    for (size_t c = 0; c < table.column_count(); ++c)
+      if (holds(entry, table.column(c))) return false;
+    return true;
+  });
+}
+
 const ColumnValues& DetectorContext::values(size_t column) {
-  if (cache_.size() < table.column_count()) cache_.resize(table.column_count());
-  if (!cache_[column]) {
-    cache_[column] = std::make_unique<ColumnValues>(collect_values(table.column(column)));
-    spend(table.row_count());
-  }
-  return *cache_[column];
+  const Column& counted = table.column(column);
+  if (const ColumnValues* known = values_.find(counted)) return *known;
+  spend(table.row_count());
+  return values_.add(counted, collect_values(counted));
 }
 
 std::vector<size_t> DetectorContext::text_columns() const {

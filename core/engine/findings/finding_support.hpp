@@ -35,6 +35,27 @@ struct ColumnValues {
 };
 ColumnValues collect_values(const Column& column);
 
+// Counted values by column storage. The views the detectors look at (the raw
+// table, then the table after the safe fixes) share the chunks of every
+// column those fixes left alone, and such a column is counted once.
+class ValuesCache {
+ public:
+  const ColumnValues* find(const Column& column) const;
+  const ColumnValues& add(const Column& column, ColumnValues values);
+  // Forgets the columns `table` no longer holds, so that the cache holds no
+  // more than the current view's columns.
+  void keep_only(const Table& table);
+
+ private:
+  struct Entry {
+    Type type = Type::text;
+    std::vector<std::shared_ptr<const ColumnChunk>> chunks;  // also keeps the values' bytes alive
+    std::unique_ptr<ColumnValues> values;
+  };
+  static bool holds(const Entry& entry, const Column& column);
+  std::vector<Entry> entries_;
+};
+
 using StepList = std::vector<nlohmann::ordered_json>;
 
 // How the scanner's coroutines share a slice (detector_task.hpp): the budget
@@ -75,8 +96,8 @@ Task<Result<Table>> apply_sliced(SliceControl& control, const Table& table, cons
 class DetectorContext {
  public:
   DetectorContext(const Table& table, const TableProfile& profile, const FindingOptions& options,
-                  std::vector<Finding>& findings, SliceControl& control)
-      : table(table), profile(profile), options(options), findings(findings), control_(control) {}
+                  std::vector<Finding>& findings, SliceControl& control, ValuesCache& values)
+      : table(table), profile(profile), options(options), findings(findings), control_(control), values_(values) {}
   const Table& table;
   const TableProfile& profile;
   const FindingOptions& options;
@@ -107,7 +128,7 @@ class DetectorContext {
  private:
   Task<Result<FixPreview>> preview(StepList first, nlohmann::ordered_json step);
   SliceControl& control_;
-  std::vector<std::unique_ptr<ColumnValues>> cache_;
+  ValuesCache& values_;
 };
 
 // Applies the steps in order (all must run), in one call.

@@ -88,6 +88,7 @@ struct FindingScanner::State {
   TableProfile seen_profile;
   std::vector<Finding> found;  // in detector order
   SliceControl control;
+  ValuesCache values;  // shared by the views
   std::unique_ptr<DetectorContext> context;
   Task<> scan = run_detectors();
 
@@ -122,7 +123,8 @@ struct FindingScanner::State {
                           }};
       seen_profile = profiler.result();
     }
-    context = std::make_unique<DetectorContext>(seen, seen_profile, options, found, control);
+    values.keep_only(seen);
+    context = std::make_unique<DetectorContext>(seen, seen_profile, options, found, control, values);
   }
 };
 
