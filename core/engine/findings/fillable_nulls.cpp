@@ -15,6 +15,7 @@
 
 #include "findings/detectors.hpp"
 #include "steps/typed_support.hpp"
+#include "string_index.hpp"
 
 namespace tamis {
 

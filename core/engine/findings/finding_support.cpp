@@ -5,22 +5,19 @@
 
 #include "recipe.hpp"
 #include "steps/typed_support.hpp"
+#include "string_index.hpp"
 #include "utf8.hpp"
 
 namespace tamis {
 
-const DistinctValue* ColumnValues::find(std::string_view value) const {
-  const std::optional<uint32_t> number = index.find(value);
-  return number ? &values[*number] : nullptr;
-}
-
 ColumnValues collect_values(const Column& column) {
   ColumnValues out;
   if (column.type() != Type::text) return out;
+  StringIndex numbers;  // numbers the values as out.values holds them
   uint64_t row = 0;
   auto add = [&](std::string_view v, uint64_t count, uint64_t first_row) {
     out.non_null += count;
-    const auto [number, added] = out.index.insert(v);
+    const auto [number, added] = numbers.insert(v);
     if (added) out.values.push_back({v, count, first_row});
     else out.values[number].count += count;
   };

@@ -15,7 +15,6 @@
 #include "findings/detector_task.hpp"
 #include "findings/findings.hpp"
 #include "row_batches.hpp"
-#include "string_index.hpp"
 
 namespace tamis {
 
@@ -30,8 +29,6 @@ struct ColumnValues {
   uint64_t nulls = 0;
   uint64_t non_null = 0;
   std::vector<DistinctValue> values;
-  const DistinctValue* find(std::string_view value) const;
-  StringIndex index;  // numbers the values as `values` holds them
 };
 ColumnValues collect_values(const Column& column);
 
