@@ -43,9 +43,7 @@ void TextChunkBuilder::reserve(size_t rows, size_t bytes) {
 }
 
 void TextChunkBuilder::mark_null(size_t row) {
-  auto& validity = chunk_->validity;
-  if ((row >> 6) >= validity.size()) validity.resize((row >> 6) + 1, ~uint64_t{0});
-  validity[row >> 6] &= ~(uint64_t{1} << (row & 63));
+  chunk_->set_own_null(row);
   ++nulls_;
 }
 
@@ -139,11 +137,9 @@ std::shared_ptr<const ColumnChunk> with_dictionary_values(const ColumnChunk& dic
   out->validity = dictionary.validity;
   out->codes = dictionary.codes;
   out->layout = TextLayout::dictionary;
-  for (size_t i = 0; i < out->rows; ++i) {
-    if (!to_null[out->code(i)]) continue;
-    if (out->validity.empty()) out->validity.assign((out->rows + 63) / 64, ~uint64_t{0});
-    out->validity[i >> 6] &= ~(uint64_t{1} << (i & 63));
-  }
+  for (size_t i = 0; i < out->rows; ++i)
+    if (to_null[out->code(i)]) out->set_own_null(i);
+  if (!out->validity.empty()) out->validity.resize((out->rows + 63) / 64, ~uint64_t{0});
   return out;
 }
 

@@ -92,6 +92,12 @@ struct ColumnChunk {
   std::string_view own_text(size_t j) const {
     return std::string_view(bytes.data() + offsets[j], offsets[j + 1] - offsets[j]);
   }
+  // Makes value j of the own arrays NULL. The bitmap grows with set (valid)
+  // bits up to j only; a finished chunk's bitmap is empty or covers every row.
+  void set_own_null(size_t j) {
+    if ((j >> 6) >= validity.size()) validity.resize((j >> 6) + 1, ~uint64_t{0});
+    validity[j >> 6] &= ~(uint64_t{1} << (j & 63));
+  }
   bool row_changed(size_t i) const { return (changed[i >> 6] >> (i & 63)) & 1; }
   uint16_t code(size_t i) const { return (*codes)[i]; }
   // About the text bytes the chunk's values add up to (an estimate for builders).

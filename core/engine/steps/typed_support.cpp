@@ -64,10 +64,7 @@ std::string quoted_value(std::string_view value) {
 }
 
 void TypedChunkBuilder::append_null() {
-  auto& validity = chunk_->validity;
-  const size_t row = chunk_->numbers.size();
-  if ((row >> 6) >= validity.size()) validity.resize((row >> 6) + 1, ~uint64_t{0});
-  validity[row >> 6] &= ~(uint64_t{1} << (row & 63));
+  chunk_->set_own_null(chunk_->numbers.size());
   chunk_->numbers.push_back(0);
 }
 
