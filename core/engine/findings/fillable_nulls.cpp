@@ -82,10 +82,12 @@ ValueIds value_ids(const Table& table, size_t column) {
 
 // The rows where both ids are set, ordered by key id, then value id: a
 // least-significant-digit radix sort of two counting passes (Cormen et al.,
-// Introduction to Algorithms, 3rd ed., 8.2 and 8.3), linear in the rows where
-// a comparison sort of a million pairs took a fifth of the findings' time.
+// Introduction to Algorithms, 3rd ed., 8.2 and 8.3), linear in the rows. The
+// comparison sort of packed pairs it replaces was 7% of the page's whole load
+// of the 1,000,000-row bench file.
 template <class Id>
-void stable_order_by(const std::vector<Id>& ids, size_t id_count, std::vector<uint32_t>& rows, std::vector<uint32_t>& out) {
+void stable_order_by(const std::vector<Id>& ids, size_t id_count, const std::vector<uint32_t>& rows,
+                     std::vector<uint32_t>& out) {
   std::vector<uint32_t> start(id_count + 1, 0);
   for (const uint32_t row : rows) ++start[ids[row]];
   uint32_t sum = 0;
