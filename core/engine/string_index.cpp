@@ -27,13 +27,6 @@ std::pair<uint32_t, bool> StringIndex::insert(std::string_view s) {
   return {number, true};
 }
 
-std::optional<uint32_t> StringIndex::find(std::string_view s) const {
-  if (slots_.empty()) return std::nullopt;
-  const Slot slot = slots_[position(s, hash(s))];
-  if (slot == 0) return std::nullopt;
-  return static_cast<uint32_t>(slot) - 1;
-}
-
 void StringIndex::grow() {
   std::vector<Slot> old(slots_.empty() ? 64 : 2 * slots_.size());
   old.swap(slots_);

@@ -13,7 +13,6 @@
 #pragma once
 
 #include <cstdint>
-#include <optional>
 #include <string_view>
 #include <utility>
 #include <vector>
@@ -24,9 +23,7 @@ class StringIndex {
  public:
   // The string's number, and whether it was added by this call.
   std::pair<uint32_t, bool> insert(std::string_view s);
-  std::optional<uint32_t> find(std::string_view s) const;
   size_t size() const { return strings_.size(); }
-  std::string_view operator[](uint32_t number) const { return strings_[number]; }
 
  private:
   using Slot = uint64_t;
